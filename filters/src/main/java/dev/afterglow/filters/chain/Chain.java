@@ -1,0 +1,92 @@
+package dev.afterglow.filters.chain;
+
+import dev.afterglow.filters.EventBatch;
+import dev.afterglow.filters.EventStage;
+import dev.afterglow.filters.recon.Reconstruction;
+import java.util.ArrayList;
+import java.util.List;
+
+/**
+ * A built chain for one sensor: denoise stages followed by a reconstruction, all state allocated
+ * here. Threading: one owner thread runs {@link #process} and the readout; counters may be read
+ * from anywhere.
+ */
+public final class Chain {
+    private final ChainSpec spec;
+    private final int width;
+    private final int height;
+    private final EventStage[] stages;
+    private final Reconstruction reconstruction;
+
+    private Chain(ChainSpec spec, int width, int height, EventStage[] stages) {
+        this.spec = spec;
+        this.width = width;
+        this.height = height;
+        this.stages = stages;
+        this.reconstruction = (Reconstruction) stages[stages.length - 1];
+    }
+
+    /** Builds {@code spec} for a sensor of {@code width} x {@code height} pixels. */
+    public static Chain build(ChainSpec spec, int width, int height) {
+        if (width < 1 || height < 1 || (long) width * height > 1 << 26) {
+            throw new ChainSpecException("sensor geometry " + width + "x" + height + " outside 1x1 .. 67108864 pixels");
+        }
+        List<StageSpec> specs = spec.stages();
+        EventStage[] built = new EventStage[specs.size()];
+        for (int i = 0; i < built.length; i++) {
+            built[i] = specs.get(i).kind().build(specs.get(i), width, height);
+        }
+        return new Chain(spec, width, height, built);
+    }
+
+    /** Parses {@code description} and builds it. */
+    public static Chain build(String description, int width, int height) {
+        return build(ChainSpec.parse(description), width, height);
+    }
+
+    /** Runs every stage over the batch; on return the batch holds the events that reached the reconstruction. */
+    public void process(EventBatch batch) {
+        for (EventStage stage : stages) {
+            if (batch.size == 0) {
+                break;
+            }
+            stage.process(batch);
+        }
+    }
+
+    /** The description this chain was built from. */
+    public ChainSpec spec() {
+        return spec;
+    }
+
+    /** All stages in order. */
+    public List<EventStage> stages() {
+        return List.of(stages);
+    }
+
+    /** The last stage. */
+    public Reconstruction reconstruction() {
+        return reconstruction;
+    }
+
+    /** Stages of the given type, in order. */
+    public <T extends EventStage> List<T> stagesOf(Class<T> type) {
+        List<T> found = new ArrayList<>();
+        for (EventStage s : stages) {
+            if (type.isInstance(s)) {
+                found.add(type.cast(s));
+            }
+        }
+        return found;
+    }
+
+    /** Sensor width. */
+    public int width() {
+        return width;
+    }
+
+    /** Sensor height. */
+    public int height() {
+        return height;
+    }
+}

@@ -1,0 +1,159 @@
+package dev.afterglow.filters.chain;
+
+import dev.afterglow.filters.EventStage;
+import dev.afterglow.filters.denoise.BackgroundActivityFilter;
+import dev.afterglow.filters.denoise.HotPixelFilter;
+import dev.afterglow.filters.denoise.RefractoryFilter;
+import dev.afterglow.filters.recon.ComplementaryFilter;
+import dev.afterglow.filters.recon.DirectIntegration;
+import dev.afterglow.filters.recon.HighPassFilter;
+import java.util.List;
+
+/**
+ * The stages a chain description can name, with their parameters (units, defaults, limits) and how
+ * each is built for a sensor geometry.
+ */
+public enum StageKind {
+    /** {@link RefractoryFilter}. */
+    REFRACTORY("refractory", false, List.of(
+            new Param("period", Unit.TIME, 1_000, 1, 1_000_000, "refractory period after a passed event"))) {
+        @Override
+        EventStage build(StageSpec s, int w, int h) {
+            return new RefractoryFilter(w, h, (int) s.get("period"));
+        }
+    },
+    /** {@link HotPixelFilter}. */
+    HOT_PIXEL("hot-pixel", false, List.of(
+            new Param("learn", Unit.TIME, 2_000_000, 1_000, 600_000_000, "learning window"),
+            new Param("factor", Unit.NUMBER, 20, 2, 1e6, "times the mean rate above which a pixel is hot"),
+            new Param("min-rate", Unit.FREQUENCY, 2 * Math.PI * 20, 0, 2 * Math.PI * 1e6,
+                    "a hot pixel also fires at least this fast (Hz accepted)"))) {
+        @Override
+        EventStage build(StageSpec s, int w, int h) {
+            return new HotPixelFilter(w, h, (long) s.get("learn"), s.get("factor"), s.get("min-rate") / (2 * Math.PI));
+        }
+    },
+    /** {@link BackgroundActivityFilter} with one supporting neighbour. */
+    BACKGROUND_ACTIVITY("background-activity", false, List.of(
+            new Param("window", Unit.TIME, 2_000, 1, 1_000_000, "correlation window dT"))) {
+        @Override
+        EventStage build(StageSpec s, int w, int h) {
+            return new BackgroundActivityFilter(w, h, (int) s.get("window"), 1);
+        }
+    },
+    /** {@link BackgroundActivityFilter} requiring k of 8 supporting neighbours. */
+    CORRELATION("correlation", false, List.of(
+            new Param("window", Unit.TIME, 2_000, 1, 1_000_000, "correlation window dT"),
+            new Param("support", Unit.INTEGER, 2, 1, 8, "neighbours (of 8) that must have fired within dT"))) {
+        @Override
+        EventStage build(StageSpec s, int w, int h) {
+            return new BackgroundActivityFilter(w, h, (int) s.get("window"), (int) s.get("support"));
+        }
+    },
+    /** {@link DirectIntegration}. */
+    DIRECT_INTEGRATION("direct-integration", true, List.of(
+            new Param("contrast", Unit.NUMBER, 0.2, 0.01, 2, "contrast threshold C in log units"))) {
+        @Override
+        EventStage build(StageSpec s, int w, int h) {
+            return new DirectIntegration(w, h, s.get("contrast"));
+        }
+    },
+    /** {@link HighPassFilter}. */
+    HIGH_PASS("high-pass", true, List.of(
+            new Param("cutoff", Unit.FREQUENCY, 5, 1e-3, 1e4, "cut-off a"),
+            new Param("contrast", Unit.NUMBER, 0.2, 0.01, 2, "contrast threshold C in log units"))) {
+        @Override
+        EventStage build(StageSpec s, int w, int h) {
+            return new HighPassFilter(w, h, s.get("contrast"), s.get("cutoff"));
+        }
+    },
+    /** {@link ComplementaryFilter}. */
+    COMPLEMENTARY("complementary", true, List.of(
+            new Param("cutoff", Unit.FREQUENCY, 5, 1e-3, 1e4, "cut-off a where the sensor frame is well exposed"),
+            new Param("low-cutoff", Unit.FREQUENCY, 0.5, 0, 1e4, "cut-off where the sensor frame is saturated or dark"),
+            new Param("contrast", Unit.NUMBER, 0.2, 0.01, 2, "contrast threshold C in log units"),
+            new Param("saturated", Unit.NUMBER, 0.95, 0.01, 1, "fraction of full scale at and above which a frame pixel is saturated"),
+            new Param("dark", Unit.NUMBER, 0.05, 0, 0.99, "fraction of full scale at and below which a frame pixel is dark"))) {
+        @Override
+        EventStage build(StageSpec s, int w, int h) {
+            return new ComplementaryFilter(w, h, s.get("contrast"), s.get("cutoff"), s.get("low-cutoff"),
+                    s.get("saturated"), s.get("dark"));
+        }
+
+        @Override
+        void checkTogether(StageSpec s) {
+            if (s.get("low-cutoff") > s.get("cutoff")) {
+                throw new ChainSpecException("complementary.low-cutoff=" + s.get("low-cutoff")
+                        + "rad/s > complementary.cutoff=" + s.get("cutoff") + "rad/s");
+            }
+            if (s.get("dark") >= s.get("saturated")) {
+                throw new ChainSpecException("complementary.dark=" + s.get("dark")
+                        + " >= complementary.saturated=" + s.get("saturated"));
+            }
+        }
+    };
+
+    private final String label;
+    private final boolean reconstruction;
+    private final List<Param> params;
+
+    StageKind(String label, boolean reconstruction, List<Param> params) {
+        this.label = label;
+        this.reconstruction = reconstruction;
+        this.params = params;
+    }
+
+    /** Name as written in a description. */
+    public String label() {
+        return label;
+    }
+
+    /** True for the stages that reconstruct intensity (must be last in a chain). */
+    public boolean reconstruction() {
+        return reconstruction;
+    }
+
+    List<Param> params() {
+        return params;
+    }
+
+    /** Builds the stage for a sensor of the given size. */
+    abstract EventStage build(StageSpec spec, int width, int height);
+
+    /** Checks constraints between parameters. */
+    void checkTogether(StageSpec spec) {
+    }
+
+    /** The kind written as {@code label}, or null. */
+    static StageKind byLabel(String label) {
+        for (StageKind k : values()) {
+            if (k.label.equals(label)) {
+                return k;
+            }
+        }
+        return null;
+    }
+
+    /** Every label, for error messages. */
+    static String labels() {
+        StringBuilder b = new StringBuilder();
+        for (StageKind k : values()) {
+            if (b.length() > 0) {
+                b.append(", ");
+            }
+            b.append(k.label);
+        }
+        return b.toString();
+    }
+
+    /** One line per parameter with unit, default and limits, for help texts. */
+    public String help() {
+        StringBuilder b = new StringBuilder(label).append('\n');
+        for (Param p : params) {
+            b.append("  ").append(p.key()).append(": ").append(p.help())
+                    .append(" (default ").append(p.format(p.defaultValue()))
+                    .append(", ").append(p.format(p.min())).append(" .. ").append(p.format(p.max())).append(")\n");
+        }
+        return b.toString();
+    }
+}

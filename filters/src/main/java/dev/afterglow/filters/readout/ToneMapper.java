@@ -1,0 +1,141 @@
+package dev.afterglow.filters.readout;
+
+/**
+ * Maps a log-intensity image to 8 bits with a {@link ToneMap}, without a per-pixel {@code exp}.
+ *
+ * <p>The range [lo, hi] (fixed, or from percentiles found with a {@value #BINS}-bin histogram
+ * between the image's minimum and maximum, so they are exact to one bin width) is cut into
+ * {@value #LUT_SIZE} steps, and a table gives the grey level of each step for the chosen curve.
+ * Values outside the range clip to 0 or 255; NaN maps to 0. Cost per frame: two passes over the
+ * image in percentile mode (min/max, histogram) plus the mapping pass; one pass in fixed mode.
+ *
+ * <p>Threading: holds reusable buffers; one owner thread.
+ */
+public final class ToneMapper {
+    /** Histogram bins used to find percentiles. */
+    public static final int BINS = 4096;
+    /** Steps of the lookup table from the mapped range to grey levels. */
+    public static final int LUT_SIZE = 4096;
+
+    private final ToneMap settings;
+    private final int[] histogram = new int[BINS];
+    private final byte[] lut = new byte[LUT_SIZE];
+    private double lutRange = Double.NaN;
+    private double lastLow;
+    private double lastHigh;
+
+    public ToneMapper(ToneMap settings) {
+        this.settings = settings;
+    }
+
+    /** The settings in use. */
+    public ToneMap settings() {
+        return settings;
+    }
+
+    /** Lower end of the log range used by the last {@link #apply} call. */
+    public double lastLow() {
+        return lastLow;
+    }
+
+    /** Upper end of the log range used by the last {@link #apply} call. */
+    public double lastHigh() {
+        return lastHigh;
+    }
+
+    /** Maps {@code log[0..n)} into {@code out[0..n)}. */
+    public void apply(float[] log, int n, byte[] out) {
+        double lo;
+        double hi;
+        if (settings.mode() == ToneMap.Mode.FIXED) {
+            lo = settings.low();
+            hi = settings.high();
+        } else {
+            float min = Float.POSITIVE_INFINITY;
+            float max = Float.NEGATIVE_INFINITY;
+            for (int i = 0; i < n; i++) {
+                float v = log[i];
+                min = Math.min(min, v);
+                max = Math.max(max, v);
+            }
+            if (!(max > min)) { // flat image, empty or NaN-only
+                lo = Float.isFinite(min) ? min - 0.5 : -0.5;
+                hi = lo + 1;
+            } else {
+                long total = fillHistogram(log, n, min, max);
+                lo = percentileValue(total, min, max, settings.low());
+                hi = percentileValue(total, min, max, settings.high());
+                if (!(hi > lo)) {
+                    hi = lo + (max - min) / BINS;
+                }
+            }
+        }
+        lastLow = lo;
+        lastHigh = hi;
+        buildLut(hi - lo);
+        float flo = (float) lo;
+        float scale = (float) ((LUT_SIZE - 1) / (hi - lo));
+        byte[] table = lut;
+        for (int i = 0; i < n; i++) {
+            float u = (log[i] - flo) * scale;
+            // NaN fails both comparisons and lands on step 0.
+            int step = u >= LUT_SIZE - 1 ? LUT_SIZE - 1 : (u > 0 ? (int) (u + 0.5f) : 0);
+            out[i] = table[step];
+        }
+    }
+
+    /** Histogram of {@code log[0..n)} over [min, max]; returns the number of pixels counted. */
+    private long fillHistogram(float[] log, int n, float min, float max) {
+        int[] h = histogram;
+        java.util.Arrays.fill(h, 0);
+        float scale = (BINS - 1) / (max - min);
+        long total = 0;
+        for (int i = 0; i < n; i++) {
+            float u = (log[i] - min) * scale;
+            if (u >= 0) { // skips NaN
+                h[Math.min(BINS - 1, (int) u)]++;
+                total++;
+            }
+        }
+        return total;
+    }
+
+    /** Log value below which {@code percent} of the counted pixels lie, to one histogram bin. */
+    private double percentileValue(long total, float min, float max, double percent) {
+        double target = percent / 100.0 * total;
+        long seen = 0;
+        double binWidth = (max - min) / (double) (BINS - 1);
+        for (int b = 0; b < BINS; b++) {
+            int c = histogram[b];
+            if (c > 0 && seen + c >= target) {
+                double within = (target - seen) / c;
+                return min + (b + within) * binWidth;
+            }
+            seen += c;
+        }
+        return max;
+    }
+
+    private void buildLut(double range) {
+        if (settings.curve() == ToneMap.Curve.LOG) {
+            if (Double.isNaN(lutRange)) {
+                for (int k = 0; k < LUT_SIZE; k++) {
+                    lut[k] = (byte) Math.round(255.0 * k / (LUT_SIZE - 1));
+                }
+                lutRange = 0;
+            }
+            return;
+        }
+        // GAMMA: grey = 255 * ((e^{r u} - 1) / (e^r - 1))^(1/2.2), u in [0, 1]; depends only on r.
+        if (Math.abs(range - lutRange) <= 1e-4 * Math.abs(range)) {
+            return;
+        }
+        double denom = Math.expm1(range);
+        for (int k = 0; k < LUT_SIZE; k++) {
+            double u = (double) k / (LUT_SIZE - 1);
+            double linear = Math.expm1(range * u) / denom;
+            lut[k] = (byte) Math.round(255.0 * Math.pow(linear, 1 / 2.2));
+        }
+        lutRange = range;
+    }
+}

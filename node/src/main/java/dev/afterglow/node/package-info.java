@@ -1,0 +1,2 @@
+/** The node's command line and demo. */
+package dev.afterglow.node;
