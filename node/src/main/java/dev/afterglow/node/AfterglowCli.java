@@ -1,0 +1,47 @@
+package dev.afterglow.node;
+
+import dev.afterglow.node.demo.DemoCommand;
+import picocli.CommandLine;
+import picocli.CommandLine.Command;
+
+/**
+ * Entry point of the {@code afterglow} command. Subcommands: {@code demo} (the built-in synthetic
+ * sensor through a chain, with PNG snapshots and per-frame numbers) and {@code stages} (the chain
+ * description reference). Exit codes: 0 success, 2 bad usage, 1 runtime failure.
+ */
+@Command(name = "afterglow",
+        mixinStandardHelpOptions = true,
+        version = "afterglow 0.1.0",
+        description = "Live event-camera intensity reconstruction.",
+        subcommands = {DemoCommand.class, StagesCommand.class, CommandLine.HelpCommand.class})
+public final class AfterglowCli implements Runnable {
+
+    @CommandLine.Spec
+    CommandLine.Model.CommandSpec spec;
+
+    @Override
+    public void run() {
+        throw new CommandLine.ParameterException(spec.commandLine(), "a subcommand is required (demo, stages)");
+    }
+
+    /** Builds the command line with one-line errors for bad options. */
+    public static CommandLine commandLine() {
+        CommandLine cl = new CommandLine(new AfterglowCli());
+        cl.setParameterExceptionHandler((ex, args) -> {
+            ex.getCommandLine().getErr().println("afterglow: " + ex.getMessage() + " (see --help)");
+            return 2;
+        });
+        cl.setExecutionExceptionHandler((ex, line, parsed) -> {
+            if (ex instanceof IllegalArgumentException) {
+                line.getErr().println("afterglow: " + ex.getMessage());
+                return 2;
+            }
+            throw ex;
+        });
+        return cl;
+    }
+
+    public static void main(String[] args) {
+        System.exit(commandLine().execute(args));
+    }
+}
