@@ -89,6 +89,18 @@ public final class EventBatch {
         return timeBaseUs + t[i];
     }
 
+    /** Earliest event time in microseconds (a scan); {@link #timeBaseUs} if empty. */
+    public long minTimeUs() {
+        if (size == 0) {
+            return timeBaseUs;
+        }
+        int min = t[0];
+        for (int i = 1; i < size; i++) {
+            min = Math.min(min, t[i]);
+        }
+        return timeBaseUs + min;
+    }
+
     /** Copies event {@code from} to slot {@code to}; used by stages that compact the batch. */
     public void move(int from, int to) {
         x[to] = x[from];

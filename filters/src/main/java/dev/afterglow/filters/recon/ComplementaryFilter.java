@@ -85,7 +85,8 @@ public final class ComplementaryFilter implements Reconstruction {
             return;
         }
         if (!clock.started()) {
-            clock.start(batch.timeBaseUs);
+            // Start at the earliest event, not the batch base, so results do not depend on batching.
+            clock.start(batch.minTimeUs());
         }
         float[] s = deviation;
         byte[] k = cls;

@@ -57,7 +57,8 @@ public final class HighPassFilter implements Reconstruction {
             return;
         }
         if (!clock.started()) {
-            clock.start(batch.timeBaseUs);
+            // Start at the earliest event, not the batch base, so results do not depend on batching.
+            clock.start(batch.minTimeUs());
         }
         float[] s = state;
         int[] xs = batch.x;
