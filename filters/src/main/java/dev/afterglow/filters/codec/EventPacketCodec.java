@@ -33,7 +33,7 @@ import java.nio.ByteOrder;
 public final class EventPacketCodec {
     /** Bytes per event record. */
     public static final int BYTES_PER_EVENT = 8;
-    /** Largest row or column index the layout can carry. */
+    /** Largest row index the layout can carry (15 bits). */
     public static final int MAX_Y = 0x7FFF;
     /** Largest column index the layout can carry. */
     public static final int MAX_X = 0xFFFF;
