@@ -1,0 +1,180 @@
+package dev.afterglow.node;
+
+import dev.afterglow.node.config.NodeConfig;
+import dev.afterglow.node.ingest.TcpIngestHandler;
+import dev.afterglow.node.ingest.UdpIngestHandler;
+import dev.afterglow.node.pipeline.NodeClock;
+import dev.afterglow.node.pipeline.SensorRegistry;
+import dev.afterglow.node.publish.FramePublisher;
+import dev.afterglow.node.publish.SubscriberHandler;
+import dev.afterglow.node.stats.Counters;
+import dev.afterglow.node.stats.NodeCounter;
+import dev.afterglow.node.wire.BoundedVarintFrameDecoder;
+import io.netty.bootstrap.Bootstrap;
+import io.netty.bootstrap.ServerBootstrap;
+import io.netty.channel.Channel;
+import io.netty.channel.ChannelInitializer;
+import io.netty.channel.ChannelOption;
+import io.netty.channel.DefaultEventLoopGroup;
+import io.netty.channel.EventLoopGroup;
+import io.netty.channel.MultiThreadIoEventLoopGroup;
+import io.netty.channel.WriteBufferWaterMark;
+import io.netty.channel.nio.NioIoHandler;
+import io.netty.channel.socket.DatagramChannel;
+import io.netty.channel.socket.SocketChannel;
+import io.netty.channel.socket.nio.NioDatagramChannel;
+import io.netty.channel.socket.nio.NioServerSocketChannel;
+import java.net.InetSocketAddress;
+import java.util.concurrent.TimeUnit;
+
+/**
+ * The running node: TCP and UDP ingest, per-sensor pipelines and the subscriber server, all
+ * bound to the configured address (loopback by default). {@link #close()} stops intake first,
+ * lets pipelines finish what they hold, then closes subscribers.
+ */
+public final class AfterglowNode implements AutoCloseable {
+    private static final int SUBSCRIBE_MAX_BYTES = 64 << 10;
+
+    private final NodeConfig config;
+    private final NodeClock clock;
+    private final EventLoopGroup ioGroup;
+    private final EventLoopGroup pipelineGroup;
+    private final Counters nodeCounters = new Counters();
+    private final FramePublisher publisher;
+    private final SensorRegistry registry;
+    private Channel tcpIngest;
+    private Channel udpIngest;
+    private Channel subscriberServer;
+
+    private AfterglowNode(NodeConfig config, NodeClock clock) {
+        this.config = config;
+        this.clock = clock;
+        this.ioGroup = new MultiThreadIoEventLoopGroup(1, NioIoHandler.newFactory());
+        this.pipelineGroup = new DefaultEventLoopGroup(config.limits.pipelineThreads);
+        this.publisher = new FramePublisher(clock);
+        this.registry = new SensorRegistry(config, pipelineGroup, publisher, clock, nodeCounters);
+    }
+
+    /** Starts a node with the system clock. */
+    public static AfterglowNode start(NodeConfig config) throws InterruptedException {
+        return start(config, NodeClock.SYSTEM);
+    }
+
+    /** Starts a node; listeners are bound when this returns. */
+    public static AfterglowNode start(NodeConfig config, NodeClock clock) throws InterruptedException {
+        AfterglowNode node = new AfterglowNode(config, clock);
+        try {
+            node.bind();
+        } catch (InterruptedException | RuntimeException e) {
+            node.close();
+            throw e;
+        }
+        return node;
+    }
+
+    private void bind() throws InterruptedException {
+        String address = config.listen.address;
+        int maxMessage = config.limits.maxMessageBytes;
+        if (config.listen.ingestTcpPort >= 0) {
+            tcpIngest = new ServerBootstrap()
+                    .group(ioGroup)
+                    .channel(NioServerSocketChannel.class)
+                    .childOption(ChannelOption.TCP_NODELAY, true)
+                    .childHandler(new ChannelInitializer<SocketChannel>() {
+                        @Override
+                        protected void initChannel(SocketChannel ch) {
+                            ch.pipeline().addLast(
+                                    new BoundedVarintFrameDecoder(maxMessage, () -> nodeCounters.increment(NodeCounter.STREAMS_TRUNCATED)),
+                                    new TcpIngestHandler(registry, clock));
+                        }
+                    })
+                    .bind(new InetSocketAddress(address, config.listen.ingestTcpPort)).sync().channel();
+        }
+        if (config.listen.ingestUdpPort >= 0) {
+            udpIngest = new Bootstrap()
+                    .group(ioGroup)
+                    .channel(NioDatagramChannel.class)
+                    .option(ChannelOption.SO_RCVBUF, 8 << 20)
+                    .handler(new ChannelInitializer<DatagramChannel>() {
+                        @Override
+                        protected void initChannel(DatagramChannel ch) {
+                            ch.pipeline().addLast(new UdpIngestHandler(registry, clock));
+                        }
+                    })
+                    .bind(new InetSocketAddress(address, config.listen.ingestUdpPort)).sync().channel();
+        }
+        if (config.listen.subscriberPort >= 0) {
+            int high = config.limits.subscriberHighWaterBytes;
+            subscriberServer = new ServerBootstrap()
+                    .group(ioGroup)
+                    .channel(NioServerSocketChannel.class)
+                    .childOption(ChannelOption.TCP_NODELAY, true)
+                    .childOption(ChannelOption.WRITE_BUFFER_WATER_MARK, new WriteBufferWaterMark(high / 2, high))
+                    .childHandler(new ChannelInitializer<SocketChannel>() {
+                        @Override
+                        protected void initChannel(SocketChannel ch) {
+                            ch.pipeline().addLast(
+                                    new BoundedVarintFrameDecoder(SUBSCRIBE_MAX_BYTES, () -> { }),
+                                    new SubscriberHandler(registry, publisher, config.limits.maxSubscribers));
+                        }
+                    })
+                    .bind(new InetSocketAddress(address, config.listen.subscriberPort)).sync().channel();
+        }
+    }
+
+    /** Bound TCP ingest port, or -1. */
+    public int ingestTcpPort() {
+        return port(tcpIngest);
+    }
+
+    /** Bound UDP ingest port, or -1. */
+    public int ingestUdpPort() {
+        return port(udpIngest);
+    }
+
+    /** Bound subscriber port, or -1. */
+    public int subscriberPort() {
+        return port(subscriberServer);
+    }
+
+    private static int port(Channel c) {
+        return c == null ? -1 : ((InetSocketAddress) c.localAddress()).getPort();
+    }
+
+    /** The sensors. */
+    public SensorRegistry sensors() {
+        return registry;
+    }
+
+    /** Subscriber fan-out. */
+    public FramePublisher publisher() {
+        return publisher;
+    }
+
+    /** Node-wide counters. */
+    public Counters counters() {
+        return nodeCounters;
+    }
+
+    /** The configuration in effect. */
+    public NodeConfig config() {
+        return config;
+    }
+
+    @Override
+    public void close() {
+        // Stop intake first, then let pipelines drain their queues, then close subscriber connections.
+        closeQuietly(tcpIngest);
+        closeQuietly(udpIngest);
+        registry.close();
+        pipelineGroup.shutdownGracefully(0, 2, TimeUnit.SECONDS).awaitUninterruptibly(5, TimeUnit.SECONDS);
+        closeQuietly(subscriberServer);
+        ioGroup.shutdownGracefully(0, 2, TimeUnit.SECONDS).awaitUninterruptibly(5, TimeUnit.SECONDS);
+    }
+
+    private static void closeQuietly(Channel c) {
+        if (c != null) {
+            c.close().awaitUninterruptibly(2, TimeUnit.SECONDS);
+        }
+    }
+}

@@ -1,0 +1,95 @@
+package dev.afterglow.node.client;
+
+import dev.afterglow.filters.EventBatch;
+import dev.afterglow.filters.codec.EventPacketCodec;
+import dev.afterglow.proto.v1.ClockDescription;
+import dev.afterglow.proto.v1.Envelope;
+import dev.afterglow.proto.v1.EventPacket;
+import dev.afterglow.proto.v1.SensorFrame;
+import dev.afterglow.proto.v1.SensorHello;
+import com.google.protobuf.UnsafeByteOperations;
+import java.io.BufferedOutputStream;
+import java.io.IOException;
+import java.io.OutputStream;
+import java.net.InetSocketAddress;
+import java.net.Socket;
+
+/**
+ * Streams one sensor's events and frames to a node over TCP: a hello, then delimited envelopes.
+ * Blocking; one thread at a time.
+ *
+ * <pre>
+ * try (SensorClient c = SensorClient.connect("127.0.0.1", 7301, "dock-cam", 640, 480, false)) {
+ *     c.sendEvents(batch);   // an EventBatch of this sensor's events
+ * }
+ * </pre>
+ */
+public final class SensorClient implements AutoCloseable {
+    /** Schema version written into every envelope. */
+    public static final int SCHEMA_VERSION = 1;
+
+    private final Socket socket;
+    private final OutputStream out;
+    private final String sensorId;
+    private long sequence;
+
+    private SensorClient(Socket socket, String sensorId) throws IOException {
+        this.socket = socket;
+        this.out = new BufferedOutputStream(socket.getOutputStream(), 1 << 16);
+        this.sensorId = sensorId;
+    }
+
+    /** Connects and sends the hello. */
+    public static SensorClient connect(String host, int port, String sensorId, int width, int height, boolean sendsFrames)
+            throws IOException {
+        Socket s = new Socket();
+        s.setTcpNoDelay(true);
+        s.connect(new InetSocketAddress(host, port), 5_000);
+        SensorClient c = new SensorClient(s, sensorId);
+        c.send(Envelope.newBuilder().setSchemaVersion(SCHEMA_VERSION).setHello(SensorHello.newBuilder()
+                .setSensorId(sensorId).setWidth(width).setHeight(height).setSendsFrames(sendsFrames)
+                .setClock(ClockDescription.newBuilder().setSource("sensor").setTickNs(1000))).build());
+        c.flush();
+        return c;
+    }
+
+    /** Sends the batch's events as one packet (sequence numbers are assigned here); not flushed. */
+    public void sendEvents(EventBatch batch) throws IOException {
+        send(Envelope.newBuilder().setSchemaVersion(SCHEMA_VERSION).setEvents(packet(sensorId, sequence++, batch)).build());
+    }
+
+    /** Sends a sensor frame; not flushed. */
+    public void sendFrame(SensorFrame frame) throws IOException {
+        send(Envelope.newBuilder().setSchemaVersion(SCHEMA_VERSION).setSensorFrame(frame).build());
+    }
+
+    /** Sends any envelope as is (for tests and tools); not flushed. */
+    public void send(Envelope envelope) throws IOException {
+        envelope.writeDelimitedTo(out);
+    }
+
+    /** Writes buffered messages to the socket. */
+    public void flush() throws IOException {
+        out.flush();
+    }
+
+    /** Builds the packet for a batch. */
+    static EventPacket packet(String sensorId, long sequence, EventBatch batch) {
+        return EventPacket.newBuilder()
+                .setSensorId(sensorId)
+                .setSequence(sequence)
+                .setTimeBaseUs(batch.timeBaseUs)
+                .setEventCount(batch.size)
+                .setEvents(UnsafeByteOperations.unsafeWrap(EventPacketCodec.encode(batch)))
+                .build();
+    }
+
+    @Override
+    public void close() throws IOException {
+        try {
+            out.flush();
+        } finally {
+            socket.close();
+        }
+    }
+}

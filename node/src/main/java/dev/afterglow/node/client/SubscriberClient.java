@@ -1,0 +1,99 @@
+package dev.afterglow.node.client;
+
+import dev.afterglow.proto.v1.Envelope;
+import dev.afterglow.proto.v1.IntensityFrame;
+import dev.afterglow.proto.v1.PixelFormat;
+import dev.afterglow.proto.v1.Region;
+import dev.afterglow.proto.v1.Subscribe;
+import java.io.BufferedInputStream;
+import java.io.IOException;
+import java.io.InputStream;
+import java.net.InetSocketAddress;
+import java.net.Socket;
+
+/**
+ * Subscribes to one sensor's frames over TCP and reads them one by one. Blocking; one thread.
+ *
+ * <pre>
+ * try (SubscriberClient s = SubscriberClient.connect("127.0.0.1", 7303, "dock-cam", 10, PixelFormat.PIXEL_FORMAT_GRAY8)) {
+ *     IntensityFrame f = s.next();
+ * }
+ * </pre>
+ */
+public final class SubscriberClient implements AutoCloseable {
+    private final Socket socket;
+    private final InputStream in;
+
+    private SubscriberClient(Socket socket) throws IOException {
+        this.socket = socket;
+        this.in = new BufferedInputStream(socket.getInputStream(), 1 << 16);
+    }
+
+    /** Connects and subscribes to the whole sensor at full resolution. */
+    public static SubscriberClient connect(String host, int port, String sensorId, double rateHz, PixelFormat format)
+            throws IOException {
+        return connect(host, port, Subscribe.newBuilder().setSensorId(sensorId).setRateHz((float) rateHz).setFormat(format).build());
+    }
+
+    /** Connects and sends a full subscribe request (region, downscale). */
+    public static SubscriberClient connect(String host, int port, Subscribe request) throws IOException {
+        Socket s = new Socket();
+        s.setTcpNoDelay(true);
+        s.connect(new InetSocketAddress(host, port), 5_000);
+        SubscriberClient c = new SubscriberClient(s);
+        Envelope.newBuilder().setSchemaVersion(SensorClient.SCHEMA_VERSION).setSubscribe(request).build()
+                .writeDelimitedTo(s.getOutputStream());
+        s.getOutputStream().flush();
+        return c;
+    }
+
+    /** A subscribe request for a region at a downscale. */
+    public static Subscribe request(String sensorId, double rateHz, PixelFormat format, int x, int y, int w, int h, int downscale) {
+        return Subscribe.newBuilder().setSensorId(sensorId).setRateHz((float) rateHz).setFormat(format)
+                .setRegion(Region.newBuilder().setX(x).setY(y).setWidth(w).setHeight(h)).setDownscale(downscale).build();
+    }
+
+    /** Sets how long {@link #next()} waits before failing with a timeout, in milliseconds (0: forever). */
+    public void setTimeoutMillis(int millis) throws IOException {
+        socket.setSoTimeout(millis);
+    }
+
+    /**
+     * Reads the next frame.
+     *
+     * @throws RefusedException if the node answered with an error report
+     * @throws java.io.EOFException if the node closed the connection
+     */
+    public IntensityFrame next() throws IOException {
+        Envelope e = Envelope.parseDelimitedFrom(in);
+        if (e == null) {
+            throw new java.io.EOFException("node closed the connection");
+        }
+        if (e.hasError()) {
+            throw new RefusedException(e.getError().getCode(), e.getError().getMessage());
+        }
+        if (!e.hasIntensityFrame()) {
+            throw new IOException("unexpected " + e.getBodyCase() + " from node");
+        }
+        return e.getIntensityFrame();
+    }
+
+    @Override
+    public void close() throws IOException {
+        socket.close();
+    }
+
+    /** The node refused the request; {@link #code()} says why. */
+    public static final class RefusedException extends IOException {
+        private final String code;
+
+        public RefusedException(String code, String message) {
+            super(code + ": " + message);
+            this.code = code;
+        }
+
+        public String code() {
+            return code;
+        }
+    }
+}

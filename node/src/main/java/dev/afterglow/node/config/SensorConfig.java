@@ -1,0 +1,67 @@
+package dev.afterglow.node.config;
+
+import dev.afterglow.filters.chain.ChainSpec;
+import dev.afterglow.filters.chain.ChainSpecException;
+
+/** One sensor's geometry and processing: chain, frame rate, latency budget. */
+public final class SensorConfig {
+    /** Sensor id as sent in its hello. */
+    public String id;
+    /** Sensor width in pixels; 0 for the defaults entry (taken from the hello). */
+    public int width;
+    /** Sensor height in pixels; 0 for the defaults entry. */
+    public int height;
+    /** Chain description. */
+    public String chain = "refractory(period=1ms) | background-activity(window=10ms) | high-pass(cutoff=3rad/s, contrast=0.2)";
+    /** Frames per second read out, in sensor time. */
+    public double frameRateHz = 50;
+    /** Extra frame after this many applied events since the last one; 0: off. */
+    public int readoutEveryEvents;
+    /** Packets whose events are older than this (mapped to host time) when processed are shed. */
+    public double latencyBudgetMs = 50;
+    /** Tone map of 8-bit frames: "percentile LOW HIGH" or "fixed LOWLOG HIGHLOG". */
+    public String toneMap = "percentile 1 99";
+
+    /** Parsed chain; valid after {@link #validate}. */
+    ChainSpec chainSpec;
+
+    void validate(String at, boolean geometryRequired) {
+        if (geometryRequired) {
+            Checks.present(at + ".id", id);
+            Checks.range(at + ".width", width, 1, 32768);
+            Checks.range(at + ".height", height, 1, 32768);
+        }
+        Checks.range(at + ".frame-rate-hz", frameRateHz, 1, 1000);
+        Checks.range(at + ".readout-every-events", readoutEveryEvents, 0, 100_000_000);
+        Checks.range(at + ".latency-budget-ms", latencyBudgetMs, 1, 10_000);
+        ToneMapText.parse(at + ".tone-map", toneMap);
+        try {
+            chainSpec = ChainSpec.parse(chain);
+        } catch (ChainSpecException e) {
+            throw new ConfigException(at + ".chain: " + e.getMessage(), e);
+        }
+    }
+
+    /** The parsed chain. */
+    public ChainSpec chainSpec() {
+        if (chainSpec == null) {
+            chainSpec = ChainSpec.parse(chain);
+        }
+        return chainSpec;
+    }
+
+    /** A copy for sensor {@code newId} of the given geometry (used for unlisted sensors). */
+    public SensorConfig forSensor(String newId, int newWidth, int newHeight) {
+        SensorConfig c = new SensorConfig();
+        c.id = newId;
+        c.width = newWidth;
+        c.height = newHeight;
+        c.chain = chain;
+        c.frameRateHz = frameRateHz;
+        c.readoutEveryEvents = readoutEveryEvents;
+        c.latencyBudgetMs = latencyBudgetMs;
+        c.toneMap = toneMap;
+        c.chainSpec = chainSpec;
+        return c;
+    }
+}

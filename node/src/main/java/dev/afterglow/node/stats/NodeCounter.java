@@ -1,0 +1,67 @@
+package dev.afterglow.node.stats;
+
+/**
+ * Every counter the node keeps, declared once with a stable Prometheus-style name (base unit and
+ * {@code _total} are added by the exporter) and help text. {@link Scope#SENSOR} counters exist per
+ * sensor, {@link Scope#NODE} counters once.
+ */
+public enum NodeCounter {
+    PACKETS_TCP(Scope.SENSOR, "afterglow.ingest.tcp.packets", "Event packets received over TCP"),
+    PACKETS_UDP(Scope.SENSOR, "afterglow.ingest.udp.packets", "Event packets received over UDP"),
+    EVENTS_RECEIVED(Scope.SENSOR, "afterglow.ingest.events", "Events received in accepted packets"),
+    SENSOR_FRAMES(Scope.SENSOR, "afterglow.ingest.sensor.frames", "The sensor's own frames received"),
+    EVENTS_OUTSIDE_SENSOR(Scope.SENSOR, "afterglow.ingest.events.outside", "Events dropped: pixel outside the sensor"),
+    EVENTS_LATE(Scope.SENSOR, "afterglow.ingest.events.late", "Events dropped: older than the last published frame (time going backwards)"),
+    PACKETS_MALFORMED(Scope.SENSOR, "afterglow.ingest.packets.malformed", "Packets rejected: byte length does not match event count, or too many events"),
+    PACKETS_SHED_LATENCY(Scope.SENSOR, "afterglow.shed.latency.packets", "Packets shed because processing lagged arrival by more than the latency budget"),
+    EVENTS_SHED_LATENCY(Scope.SENSOR, "afterglow.shed.latency.events", "Events in packets shed for the latency budget"),
+    PACKETS_SHED_QUEUE(Scope.SENSOR, "afterglow.shed.queue.packets", "Packets shed because the sensor's pending-packet queue was full"),
+    EVENTS_SHED_QUEUE(Scope.SENSOR, "afterglow.shed.queue.events", "Events in packets shed for a full queue"),
+    UDP_LOST(Scope.SENSOR, "afterglow.ingest.udp.lost.packets", "UDP packets missing from the sequence (may arrive later)"),
+    UDP_REORDERED(Scope.SENSOR, "afterglow.ingest.udp.reordered.packets", "UDP packets that arrived after a later one"),
+    UDP_DUPLICATE(Scope.SENSOR, "afterglow.ingest.udp.duplicate.packets", "UDP packets seen twice (dropped)"),
+    UDP_LATE(Scope.SENSOR, "afterglow.ingest.udp.late.packets", "UDP packets dropped because they arrived too late to apply in order"),
+    CLOCK_RESTARTS(Scope.SENSOR, "afterglow.ingest.clock.restarts", "Sensor clock jumped back by more than the restart threshold; the sensor's state was reset"),
+    FRAMES_SKIPPED(Scope.SENSOR, "afterglow.frames.skipped", "Frame times skipped because they were already older than the latency budget when due"),
+    FRAMES_PUBLISHED(Scope.SENSOR, "afterglow.frames.published", "Frames read out and offered to subscribers"),
+    FRAMES_MISSED(Scope.SENSOR, "afterglow.frames.missed", "Frames a subscriber missed because it could not keep up"),
+    MESSAGES_MALFORMED(Scope.NODE, "afterglow.ingest.malformed.messages", "Messages or datagrams that are not valid envelopes"),
+    MESSAGES_OVERSIZED(Scope.NODE, "afterglow.ingest.oversized.messages", "TCP messages whose length prefix exceeds the limit (connection closed)"),
+    STREAMS_TRUNCATED(Scope.NODE, "afterglow.ingest.truncated.streams", "TCP streams that ended inside a message"),
+    PROTOCOL_ERRORS(Scope.NODE, "afterglow.ingest.protocol.errors", "Messages out of protocol order (e.g. events before hello)"),
+    UNKNOWN_SENSOR(Scope.NODE, "afterglow.ingest.unknown.sensor", "Messages or connections for a sensor the node does not accept"),
+    GEOMETRY_MISMATCH(Scope.NODE, "afterglow.ingest.geometry.mismatch", "Hellos or frames whose geometry differs from the sensor's"),
+    SUBSCRIBERS_REJECTED(Scope.NODE, "afterglow.subscribers.rejected", "Subscriber connections refused (bad request or limit)"),
+    INTERNAL_ERRORS(Scope.NODE, "afterglow.internal.errors", "Unexpected exceptions caught by a handler (a bug; the loop keeps running)");
+
+    /** Where a counter lives. */
+    public enum Scope {
+        /** One per sensor. */
+        SENSOR,
+        /** One per node. */
+        NODE
+    }
+
+    private final Scope scope;
+    private final String meterName;
+    private final String help;
+
+    NodeCounter(Scope scope, String meterName, String help) {
+        this.scope = scope;
+        this.meterName = meterName;
+        this.help = help;
+    }
+
+    public Scope scope() {
+        return scope;
+    }
+
+    /** Dotted meter name; the Prometheus exporter turns it into snake case with a unit and {@code _total}. */
+    public String meterName() {
+        return meterName;
+    }
+
+    public String help() {
+        return help;
+    }
+}

@@ -1,0 +1,173 @@
+package dev.afterglow.node.e2e;
+
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import dev.afterglow.filters.EventBatch;
+import dev.afterglow.filters.chain.Chain;
+import dev.afterglow.node.AfterglowNode;
+import dev.afterglow.node.client.SensorClient;
+import dev.afterglow.node.client.SubscriberClient;
+import dev.afterglow.node.client.UdpSensorClient;
+import dev.afterglow.node.config.NodeConfig;
+import dev.afterglow.node.stats.NodeCounter;
+import dev.afterglow.proto.v1.IntensityFrame;
+import dev.afterglow.proto.v1.PixelFormat;
+import java.nio.ByteBuffer;
+import java.nio.ByteOrder;
+import java.util.ArrayList;
+import java.util.List;
+import java.util.concurrent.TimeUnit;
+import org.junit.jupiter.api.Test;
+import org.junit.jupiter.api.Timeout;
+
+/**
+ * A synthetic scene streamed into a real node on loopback, over TCP and over UDP; a subscriber
+ * receives every frame, frames are exactly one period apart in sensor time, and their pixels equal
+ * the same chain run in-process on the same events, bit for bit.
+ */
+@Timeout(value = 60, unit = TimeUnit.SECONDS)
+class StreamingEndToEndTest {
+    private static final int W = 64;
+    private static final int H = 48;
+    private static final String CHAIN = "refractory(period=1ms) | background-activity(window=10ms) | high-pass(cutoff=3rad/s, contrast=0.2)";
+
+    static NodeConfig config(String sensorId, double rateHz, double budgetMs) {
+        return NodeConfig.parse("""
+                listen:
+                  ingest-tcp-port: 0
+                  ingest-udp-port: 0
+                  subscriber-port: 0
+                sensors:
+                  - id: %s
+                    width: %d
+                    height: %d
+                    chain: "%s"
+                    frame-rate-hz: %s
+                    latency-budget-ms: %s
+                """.formatted(sensorId, W, H, CHAIN, rateHz, budgetMs), "test");
+    }
+
+    @Test
+    void shouldDeliverFramesOverTcpEqualToInProcessChain() throws Exception {
+        runAndCompare(false);
+    }
+
+    @Test
+    void shouldDeliverFramesOverUdpEqualToInProcessChain() throws Exception {
+        runAndCompare(true);
+    }
+
+    private void runAndCompare(boolean udp) throws Exception {
+        List<EventBatch> packets = SceneEvents.packets(W, H, 600_000, 1_000, 11);
+        try (AfterglowNode node = AfterglowNode.start(config("belt", 100, 5_000));
+                SubscriberClient sub = SubscriberClient.connect("127.0.0.1", node.subscriberPort(), "belt", 0,
+                        PixelFormat.PIXEL_FORMAT_LOG_F32)) {
+            sub.setTimeoutMillis(20_000);
+            waitFor(() -> node.publisher().count() == 1);
+            if (udp) {
+                try (UdpSensorClient sensor = new UdpSensorClient("127.0.0.1", node.ingestUdpPort(), "belt")) {
+                    for (int i = 0; i < packets.size(); i++) {
+                        sensor.sendEvents(packets.get(i));
+                        if (i % 20 == 0) {
+                            Thread.sleep(1); // pace a little so the loopback socket buffer never overflows
+                        }
+                    }
+                }
+            } else {
+                try (SensorClient sensor = SensorClient.connect("127.0.0.1", node.ingestTcpPort(), "belt", W, H, false)) {
+                    for (EventBatch b : packets) {
+                        sensor.sendEvents(b);
+                    }
+                }
+            }
+            long lastEventUs = packets.get(packets.size() - 1).timeUs(packets.get(packets.size() - 1).size - 1);
+            int expectedFrames = (int) (lastEventUs / 10_000); // frames at 10 ms, 20 ms, ... <= last event
+            List<IntensityFrame> frames = new ArrayList<>();
+            for (int i = 0; i < expectedFrames; i++) {
+                try {
+                    frames.add(sub.next());
+                } catch (java.net.SocketTimeoutException e) {
+                    throw new AssertionError("frame " + i + " of " + expectedFrames + " not received; sensor counters: "
+                            + describe(node), e);
+                }
+            }
+
+            // Reference: the same chain in this process, events before T applied, read out at T.
+            Chain reference = Chain.build(CHAIN, W, H);
+            float[] expected = new float[W * H];
+            int packetIndex = 0;
+            int eventIndex = 0;
+            EventBatch one = new EventBatch(1 << 16);
+            for (int f = 0; f < frames.size(); f++) {
+                IntensityFrame frame = frames.get(f);
+                long t = frame.getFrameTimeUs();
+                assertEquals(10_000L * (f + 1), t, "frame " + f + " time");
+                assertEquals(f + 1, frame.getSequence());
+                one.reset(packets.get(Math.min(packetIndex, packets.size() - 1)).timeBaseUs);
+                while (packetIndex < packets.size()) {
+                    EventBatch p = packets.get(packetIndex);
+                    if (eventIndex == p.size) {
+                        packetIndex++;
+                        eventIndex = 0;
+                        continue;
+                    }
+                    if (p.timeUs(eventIndex) >= t) {
+                        break;
+                    }
+                    if (one.size == one.capacity() || p.timeUs(eventIndex) - one.timeBaseUs >= EventBatch.MAX_OFFSET_US) {
+                        reference.process(one);
+                        one.reset(p.timeUs(eventIndex));
+                    }
+                    one.add(p.x[eventIndex], p.y[eventIndex], p.timeUs(eventIndex), p.p[eventIndex]);
+                    eventIndex++;
+                }
+                reference.process(one);
+                reference.reconstruction().readLog(t, expected);
+                assertEquals(W, frame.getWidth());
+                assertEquals(H, frame.getHeight());
+                ByteBuffer px = frame.getPixels().asReadOnlyByteBuffer().order(ByteOrder.LITTLE_ENDIAN);
+                for (int i = 0; i < W * H; i++) {
+                    float got = px.getFloat(4 * i);
+                    if (Float.floatToRawIntBits(got) != Float.floatToRawIntBits(expected[i])) {
+                        throw new AssertionError("frame " + f + " pixel " + i + ": node " + got + " != in-process " + expected[i]);
+                    }
+                }
+                assertTrue(frame.getProvenance().getEventsApplied() >= 0);
+            }
+            var counters = node.sensors().get("belt").counters();
+            assertEquals(0, counters.get(NodeCounter.PACKETS_SHED_LATENCY));
+            assertEquals(0, counters.get(NodeCounter.PACKETS_SHED_QUEUE));
+            assertEquals(0, counters.get(NodeCounter.EVENTS_LATE));
+            if (udp) {
+                assertEquals(0, counters.get(NodeCounter.UDP_LOST));
+                assertTrue(counters.get(NodeCounter.PACKETS_UDP) >= packets.size());
+            } else {
+                assertEquals(packets.size(), counters.get(NodeCounter.PACKETS_TCP));
+            }
+        }
+    }
+
+    static String describe(AfterglowNode node) {
+        StringBuilder b = new StringBuilder();
+        for (var p : node.sensors().all()) {
+            for (NodeCounter c : NodeCounter.values()) {
+                long v = c.scope() == NodeCounter.Scope.SENSOR ? p.counters().get(c) : node.counters().get(c);
+                if (v != 0) {
+                    b.append(c).append('=').append(v).append(' ');
+                }
+            }
+        }
+        return b.toString();
+    }
+
+    static void waitFor(java.util.function.BooleanSupplier condition) throws InterruptedException {
+        long deadline = System.nanoTime() + TimeUnit.SECONDS.toNanos(10);
+        while (!condition.getAsBoolean()) {
+            if (System.nanoTime() > deadline) {
+                throw new AssertionError("condition not met within 10 s");
+            }
+            Thread.sleep(5);
+        }
+    }
+}
