@@ -1,19 +1,23 @@
 package dev.afterglow.node;
 
-import dev.afterglow.node.demo.DemoCommand;
+import dev.afterglow.node.cli.DemoCommand;
+import dev.afterglow.node.cli.FeedCommand;
+import dev.afterglow.node.cli.ServeCommand;
+import dev.afterglow.node.cli.WatchCommand;
 import picocli.CommandLine;
 import picocli.CommandLine.Command;
 
 /**
- * Entry point of the {@code afterglow} command. Subcommands: {@code demo} (the built-in synthetic
- * sensor through a chain, with PNG snapshots and per-frame numbers) and {@code stages} (the chain
- * description reference). Exit codes: 0 success, 2 bad usage, 1 runtime failure.
+ * Entry point of the {@code afterglow} command. Subcommands: {@code serve} (run the node), {@code demo}
+ * (node + synthetic sensor + subscriber on loopback), {@code feed} (act as a sensor), {@code watch}
+ * (act as a subscriber) and {@code stages} (the chain description reference). Exit codes: 0 success, 2 bad usage, 1 runtime failure.
  */
 @Command(name = "afterglow",
         mixinStandardHelpOptions = true,
         version = "afterglow 0.1.0",
         description = "Live event-camera intensity reconstruction.",
-        subcommands = {DemoCommand.class, StagesCommand.class, CommandLine.HelpCommand.class})
+        subcommands = {ServeCommand.class, DemoCommand.class, FeedCommand.class, WatchCommand.class, StagesCommand.class,
+                CommandLine.HelpCommand.class})
 public final class AfterglowCli implements Runnable {
 
     @CommandLine.Spec
@@ -21,7 +25,7 @@ public final class AfterglowCli implements Runnable {
 
     @Override
     public void run() {
-        throw new CommandLine.ParameterException(spec.commandLine(), "a subcommand is required (demo, stages)");
+        throw new CommandLine.ParameterException(spec.commandLine(), "a subcommand is required (serve, demo, feed, watch, stages)");
     }
 
     /** Builds the command line with one-line errors for bad options. */

@@ -7,13 +7,19 @@ import java.nio.file.Path;
 import javax.imageio.ImageIO;
 
 /** Writes 8-bit grey images, several side by side with a white gap, as PNG. */
-final class GrayPng {
+public final class GrayPngWriter {
     private static final int GAP = 4;
 
-    private GrayPng() {
+    private GrayPngWriter() {
     }
 
-    static void writeSideBySide(Path file, int width, int height, byte[]... panels) throws IOException {
+    /** Writes one 8-bit grey image. */
+    public static void write(Path file, int width, int height, byte[] pixels) throws IOException {
+        writeSideBySide(file, width, height, pixels);
+    }
+
+    /** Writes several equally sized grey images side by side. */
+    public static void writeSideBySide(Path file, int width, int height, byte[]... panels) throws IOException {
         int total = panels.length * width + (panels.length - 1) * GAP;
         BufferedImage image = new BufferedImage(total, height, BufferedImage.TYPE_BYTE_GRAY);
         byte[] dst = ((DataBufferByte) image.getRaster().getDataBuffer()).getData();

@@ -1,0 +1,104 @@
+package dev.afterglow.node.cli;
+
+import dev.afterglow.node.AfterglowNode;
+import dev.afterglow.node.client.SensorClient;
+import dev.afterglow.node.client.SubscriberClient;
+import dev.afterglow.node.config.NodeConfig;
+import dev.afterglow.node.demo.SyntheticFeed;
+import dev.afterglow.proto.v1.PixelFormat;
+import java.nio.file.Path;
+import java.util.Locale;
+import java.util.concurrent.Callable;
+import java.util.concurrent.atomic.AtomicReference;
+import picocli.CommandLine.Command;
+import picocli.CommandLine.Option;
+
+/**
+ * The demo: a node on loopback, the built-in synthetic sensor streaming the conveyor scene into it
+ * over TCP in real time, and a subscriber that prints one line per frame and saves PNG snapshots.
+ */
+@Command(name = "demo", mixinStandardHelpOptions = true,
+        description = "Start a node on loopback, stream the synthetic conveyor scene into it, print frames and save PNG snapshots.")
+public final class DemoCommand implements Callable<Integer> {
+
+    @Option(names = "--chain", paramLabel = "CHAIN", description = "Chain description (see 'afterglow stages'). Default: ${DEFAULT-VALUE}")
+    String chain = "refractory(period=1ms) | background-activity(window=10ms) | high-pass(cutoff=3rad/s, contrast=0.2)";
+
+    @Option(names = "--seconds", description = "How long to run, 1 .. 3600 s. Default: ${DEFAULT-VALUE}")
+    double seconds = 6;
+
+    @Option(names = "--width", description = "16 .. 1280. Default: ${DEFAULT-VALUE}")
+    int width = 320;
+
+    @Option(names = "--height", description = "16 .. 720. Default: ${DEFAULT-VALUE}")
+    int height = 240;
+
+    @Option(names = "--rate", description = "Node frame rate, 1 .. 1000 Hz. Default: ${DEFAULT-VALUE}")
+    double rate = 50;
+
+    @Option(names = "--watch-rate", description = "Subscriber's frame rate, 1 .. 1000 Hz. Default: ${DEFAULT-VALUE}")
+    double watchRate = 10;
+
+    @Option(names = "--noise", description = "Background activity per pixel in Hz, 0 .. 100. Default: ${DEFAULT-VALUE}")
+    double noiseHz = 1;
+
+    @Option(names = "--out", description = "Folder for PNG snapshots. Default: ${DEFAULT-VALUE}")
+    Path out = Path.of("demo-out");
+
+    @Option(names = "--save-every", description = "Save every N-th received frame, 1 .. 100000. Default: ${DEFAULT-VALUE}")
+    int saveEvery = 10;
+
+    @Override
+    public Integer call() throws Exception {
+        Checks.range("--seconds", seconds, 1, 3600);
+        Checks.range("--width", width, 16, 1280);
+        Checks.range("--height", height, 16, 720);
+        Checks.range("--rate", rate, 1, 1000);
+        Checks.range("--watch-rate", watchRate, 1, 1000);
+        Checks.range("--noise", noiseHz, 0, 100);
+        Checks.range("--save-every", saveEvery, 1, 100_000);
+        String sensorId = "conveyor-cam";
+        NodeConfig config = NodeConfig.parse("""
+                listen:
+                  ingest-tcp-port: 0
+                  ingest-udp-port: -1
+                  subscriber-port: 0
+                sensors:
+                  - id: %s
+                    width: %d
+                    height: %d
+                    chain: "%s"
+                    frame-rate-hz: %s
+                    latency-budget-ms: 50
+                """.formatted(sensorId, width, height, chain.replace("\"", ""), rate), "demo");
+        System.out.printf(Locale.ROOT, "afterglow demo: node on 127.0.0.1, sensor %s %dx%d, chain: %s%n",
+                sensorId, width, height, config.sensors.get(0).chainSpec());
+        try (AfterglowNode node = AfterglowNode.start(config)) {
+            AtomicReference<Exception> feedError = new AtomicReference<>();
+            Thread feeder = new Thread(() -> {
+                try (SensorClient c = SensorClient.connect("127.0.0.1", node.ingestTcpPort(), sensorId, width, height, true)) {
+                    new SyntheticFeed(width, height, noiseHz, 7).run(SyntheticFeed.tcp(c), sensorId, seconds, 1000, 1, true);
+                } catch (InterruptedException e) {
+                    Thread.currentThread().interrupt();
+                } catch (Exception e) {
+                    feedError.set(e);
+                }
+            }, "demo-sensor");
+            long frames;
+            try (SubscriberClient sub = SubscriberClient.connect("127.0.0.1", node.subscriberPort(), sensorId, watchRate,
+                    PixelFormat.PIXEL_FORMAT_GRAY8)) {
+                feeder.start();
+                long expected = (long) Math.floor((seconds - 0.2) * Math.min(watchRate, rate));
+                sub.setTimeoutMillis(5_000);
+                frames = new FrameWatcher(sub, System.out, out, saveEvery).run(Math.max(1, expected));
+            }
+            feeder.interrupt();
+            feeder.join(5_000);
+            if (feedError.get() != null) {
+                throw feedError.get();
+            }
+            System.out.printf(Locale.ROOT, "afterglow demo: %d frames received; PNG snapshots in %s%n", frames, out.toAbsolutePath());
+        }
+        return 0;
+    }
+}
