@@ -79,8 +79,10 @@ public final class EventPacketCodec {
             result.status = DecodeResult.Status.TOO_MANY_EVENTS;
             return result;
         }
-        ByteBuffer le = events.duplicate().order(ByteOrder.LITTLE_ENDIAN);
-        int base = le.position();
+        // Absolute reads on the caller's buffer, swapped if it is big-endian: a duplicate() here
+        // would allocate a buffer per packet.
+        boolean swap = events.order() != ByteOrder.LITTLE_ENDIAN;
+        int base = events.position();
         int[] xs = out.x;
         int[] ys = out.y;
         int[] ts = out.t;
@@ -92,7 +94,8 @@ public final class EventPacketCodec {
         int late = 0;
         int maxT = 0;
         for (int i = 0; i < eventCount; i++) {
-            long word = le.getLong(base + i * BYTES_PER_EVENT);
+            long raw = events.getLong(base + i * BYTES_PER_EVENT);
+            long word = swap ? Long.reverseBytes(raw) : raw;
             int dt = (int) word;
             int x = (int) (word >>> 32) & 0xFFFF;
             int y = (int) (word >>> 48) & MAX_Y;

@@ -1,0 +1,92 @@
+package dev.afterglow.filters.bench;
+
+import dev.afterglow.filters.EventBatch;
+import dev.afterglow.filters.chain.Chain;
+import dev.afterglow.filters.recon.Reconstruction;
+import java.util.concurrent.TimeUnit;
+import org.openjdk.jmh.annotations.Benchmark;
+import org.openjdk.jmh.annotations.BenchmarkMode;
+import org.openjdk.jmh.annotations.Fork;
+import org.openjdk.jmh.annotations.Level;
+import org.openjdk.jmh.annotations.Mode;
+import org.openjdk.jmh.annotations.OperationsPerInvocation;
+import org.openjdk.jmh.annotations.OutputTimeUnit;
+import org.openjdk.jmh.annotations.Scope;
+import org.openjdk.jmh.annotations.Setup;
+import org.openjdk.jmh.annotations.State;
+
+/**
+ * Events per second through the default chain {@value #CHAIN}, without readout and with a full
+ * 640x480 float readout every {@value SceneEvents#READOUT_INTERVAL_US} us of sensor time.
+ *
+ * <p>As in {@link StageBenchmark}, each invocation copies a pristine batch into a work batch first;
+ * <b>the copy is included in the score</b> ({@link DecodeBenchmark#copyBaseline()} measures it alone).
+ */
+@State(Scope.Thread)
+@Fork(value = 1, jvmArgsAppend = {"-Xms1g", "-Xmx1g"}) // fixed heap: no resizing during measurement
+@BenchmarkMode(Mode.Throughput)
+@OutputTimeUnit(TimeUnit.SECONDS)
+public class ChainBenchmark {
+    /** The chain measured: the project's default chain with its default parameters written out. */
+    public static final String CHAIN =
+            "refractory(period=1ms) | background-activity(window=2ms) | high-pass(cutoff=5rad/s, contrast=0.2)";
+
+    private Chain chain;
+    private Reconstruction reconstruction;
+    private float[] frame;
+    private EventBatch work;
+    private Replay replay;
+    private SceneEvents events;
+    private long readouts;
+
+    /** Builds the chain and the readout buffer. */
+    @Setup(Level.Trial)
+    public void setUp(SceneEvents events) {
+        this.events = events;
+        chain = Chain.build(CHAIN, SceneEvents.WIDTH, SceneEvents.HEIGHT);
+        reconstruction = chain.reconstruction();
+        frame = new float[SceneEvents.WIDTH * SceneEvents.HEIGHT];
+        work = new EventBatch(SceneEvents.BATCH_EVENTS);
+        replay = new Replay(events);
+    }
+
+    /** One batch through the chain. */
+    @Benchmark
+    @OperationsPerInvocation(SceneEvents.BATCH_EVENTS)
+    public int chain() {
+        replay.advance();
+        replay.copyCurrent(work); // included in the measurement
+        chain.process(work);
+        return work.size;
+    }
+
+    /**
+     * One batch through the chain, split at every readout tick that falls inside it: the events up to
+     * the tick go through the chain, then the whole frame is read out at the tick's time, then the
+     * rest follows. So readout and events interleave by sensor time as in the node.
+     */
+    @Benchmark
+    @OperationsPerInvocation(SceneEvents.BATCH_EVENTS)
+    public long chainWithReadout() {
+        int b = replay.advance();
+        int[] offsets = events.tickOffsets[b];
+        long[] times = events.tickTimesUs[b];
+        long shift = replay.shiftUs();
+        int from = 0;
+        for (int k = 0; k < offsets.length; k++) {
+            int to = offsets[k];
+            if (to > from) {
+                replay.copyCurrent(from, to, work); // included in the measurement
+                chain.process(work);
+                from = to;
+            }
+            reconstruction.readLog(times[k] + shift, frame);
+            readouts++;
+        }
+        if (from < SceneEvents.BATCH_EVENTS) {
+            replay.copyCurrent(from, SceneEvents.BATCH_EVENTS, work);
+            chain.process(work);
+        }
+        return readouts + work.size;
+    }
+}
