@@ -10,6 +10,7 @@ import java.io.StringWriter;
 import java.nio.charset.StandardCharsets;
 import java.nio.file.Files;
 import java.nio.file.Path;
+import java.util.List;
 import java.util.stream.Stream;
 import javax.imageio.ImageIO;
 import java.awt.image.BufferedImage;
@@ -51,37 +52,42 @@ class AfterglowCliTest {
     }
 
     @Test
-    void demoShouldPrintFramesAndWriteSnapshots(@TempDir Path dir) throws Exception {
+    void demoShouldStreamThroughALiveNodeAndWriteSnapshots(@TempDir Path dir) throws Exception {
         PrintStream saved = System.out;
         ByteArrayOutputStream captured = new ByteArrayOutputStream();
         int code;
         try {
             System.setOut(new PrintStream(captured, true, StandardCharsets.UTF_8));
-            code = run(new StringWriter(), "demo", "--seconds", "0.5", "--width", "64", "--height", "48",
-                    "--rate", "20", "--snapshot-every", "5", "--out", dir.toString());
+            code = run(new StringWriter(), "demo", "--seconds", "2", "--width", "64", "--height", "48",
+                    "--rate", "50", "--watch-rate", "10", "--save-every", "5", "--out", dir.toString());
         } finally {
             System.setOut(saved);
         }
         assertEquals(0, code);
         String out = captured.toString(StandardCharsets.UTF_8);
-        assertEquals(10, out.lines().filter(l -> l.startsWith("t=")).count(), out);
+        // About 2 s at 10 frames/s; frames due while the JIT warms up may be shed on a loaded machine.
+        long frames = out.lines().filter(l -> l.startsWith("conveyor-cam #")).count();
+        assertTrue(frames >= 10 && frames <= 20, frames + " frames\n" + out);
+        assertTrue(out.contains(frames + " frames received"), out);
+        List<Path> pngs;
         try (Stream<Path> files = Files.list(dir)) {
-            assertEquals(2, files.count());
+            pngs = files.sorted().toList();
         }
-        BufferedImage png = ImageIO.read(dir.resolve("frame-00010.png").toFile());
-        assertEquals(2 * 64 + 4, png.getWidth());
+        assertEquals(frames / 5, pngs.size(), pngs.toString());
+        BufferedImage png = ImageIO.read(pngs.get(pngs.size() - 1).toFile());
+        assertEquals(64, png.getWidth());
         assertEquals(48, png.getHeight());
-        // The reconstruction panel is not flat: the belt moves, so it shows structure.
+        // The belt moves, so the reconstruction shows structure rather than a flat grey.
         int min = 255;
         int max = 0;
         for (int y = 0; y < 48; y++) {
-            for (int x = 68; x < 132; x++) {
+            for (int x = 0; x < 64; x++) {
                 int v = png.getRaster().getSample(x, y, 0);
                 min = Math.min(min, v);
                 max = Math.max(max, v);
             }
         }
-        assertTrue(max - min > 100, "reconstruction panel range " + min + ".." + max);
+        assertTrue(max - min > 100, "frame range " + min + ".." + max);
     }
 
     @Test

@@ -88,9 +88,9 @@ public final class DemoCommand implements Callable<Integer> {
             try (SubscriberClient sub = SubscriberClient.connect("127.0.0.1", node.subscriberPort(), sensorId, watchRate,
                     PixelFormat.PIXEL_FORMAT_GRAY8)) {
                 feeder.start();
-                long expected = (long) Math.floor((seconds - 0.2) * Math.min(watchRate, rate));
-                sub.setTimeoutMillis(5_000);
-                frames = new FrameWatcher(sub, System.out, out, saveEvery).run(Math.max(1, expected));
+                // Read until the sensor has finished and no frame came for half a second.
+                sub.setTimeoutMillis(500);
+                frames = new FrameWatcher(sub, System.out, out, saveEvery).run(0, () -> !feeder.isAlive());
             }
             feeder.interrupt();
             feeder.join(5_000);

@@ -32,6 +32,14 @@ final class FrameWatcher {
 
     /** Reads {@code count} frames (0: until the connection ends); returns frames read. */
     long run(long count) throws IOException {
+        return run(count, () -> false);
+    }
+
+    /**
+     * Reads {@code count} frames (0: no limit) until the connection ends, or until a read times
+     * out while {@code done} says the source has finished; returns frames read.
+     */
+    long run(long count, java.util.function.BooleanSupplier done) throws IOException {
         if (saveDir != null) {
             Files.createDirectories(saveDir);
         }
@@ -42,6 +50,11 @@ final class FrameWatcher {
                 f = client.next();
             } catch (java.io.EOFException e) {
                 break;
+            } catch (java.net.SocketTimeoutException e) {
+                if (done.getAsBoolean()) {
+                    break;
+                }
+                continue;
             }
             n++;
             out.println(line(f));
