@@ -8,6 +8,8 @@ public final class LimitsConfig {
     public int maxEventsPerPacket = 1 << 19;
     /** Packets waiting for a sensor's pipeline thread before new ones are shed. */
     public int maxPendingPackets = 512;
+    /** Bytes of event data waiting for one sensor's pipeline thread before new packets are shed. */
+    public int maxPendingBytes = 64 << 20;
     /** Subscriber connections at once. */
     public int maxSubscribers = 64;
     /** A subscriber's unsent bytes above which it stops receiving frames (it misses them). */
@@ -19,6 +21,7 @@ public final class LimitsConfig {
         Checks.range("limits.max-message-bytes", maxMessageBytes, 1024, 256 << 20);
         Checks.range("limits.max-events-per-packet", maxEventsPerPacket, 1, 1 << 24);
         Checks.range("limits.max-pending-packets", maxPendingPackets, 1, 1 << 16);
+        Checks.range("limits.max-pending-bytes", maxPendingBytes, 1 << 20, 1 << 30);
         Checks.range("limits.max-subscribers", maxSubscribers, 1, 10_000);
         Checks.range("limits.subscriber-high-water-bytes", subscriberHighWaterBytes, 64 << 10, 1 << 30);
         Checks.range("limits.pipeline-threads", pipelineThreads, 1, 64);

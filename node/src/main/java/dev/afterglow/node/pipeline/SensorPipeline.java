@@ -56,7 +56,9 @@ public final class SensorPipeline {
     private final NodeClock clock;
     private final Counters counters;
     private final int maxPending;
+    private final long maxPendingBytes;
     private final AtomicInteger pending = new AtomicInteger();
+    private final java.util.concurrent.atomic.AtomicLong pendingBytes = new java.util.concurrent.atomic.AtomicLong();
     private final EventPacketCodec codec;
     private final EventBatch batch;
     private final EventBatch tail;
@@ -95,7 +97,7 @@ public final class SensorPipeline {
      * @param loop the pipeline thread this sensor lives on
      */
     public SensorPipeline(SensorConfig config, EventLoop loop, FramePublisher publisher, NodeClock clock,
-            Counters counters, int maxPendingPackets, int maxEventsPerPacket) {
+            Counters counters, int maxPendingPackets, long maxPendingBytes, int maxEventsPerPacket) {
         this.id = config.id;
         this.width = config.width;
         this.height = config.height;
@@ -104,6 +106,7 @@ public final class SensorPipeline {
         this.clock = clock;
         this.counters = counters;
         this.maxPending = maxPendingPackets;
+        this.maxPendingBytes = maxPendingBytes;
         this.codec = new EventPacketCodec(width, height);
         this.batch = new EventBatch(maxEventsPerPacket);
         this.tail = new EventBatch(maxEventsPerPacket);
@@ -208,17 +211,26 @@ public final class SensorPipeline {
         });
     }
 
-    /** Hands a packet to the pipeline thread, or sheds it if too many wait. Any thread. */
+    /**
+     * Hands a packet to the pipeline thread, or sheds it if too many packets or bytes already
+     * wait (the newest is shed here; the latency budget then sheds the oldest on the pipeline
+     * thread). Any thread.
+     */
     public boolean offerPacket(EventPacket packet, long arrivalNanos, Transport transport) {
         counters.increment(transport == Transport.TCP ? NodeCounter.PACKETS_TCP : NodeCounter.PACKETS_UDP);
-        if (pending.incrementAndGet() > maxPending) {
+        long bytes = packet.getEvents().size();
+        int waitingPackets = pending.incrementAndGet();
+        long waitingBytes = pendingBytes.addAndGet(bytes);
+        if (waitingPackets > maxPending || waitingBytes > maxPendingBytes) {
             pending.decrementAndGet();
+            pendingBytes.addAndGet(-bytes);
             counters.increment(NodeCounter.PACKETS_SHED_QUEUE);
             counters.add(NodeCounter.EVENTS_SHED_QUEUE, packet.getEventCount());
             return false;
         }
         loop.execute(() -> {
             pending.decrementAndGet();
+            pendingBytes.addAndGet(-bytes);
             onPacket(packet, arrivalNanos / 1000, transport);
         });
         return true;
@@ -234,20 +246,19 @@ public final class SensorPipeline {
         if (transport == Transport.UDP && !acceptUdpSequence(packet.getSequence())) {
             return;
         }
-        codec.decode(packet.getEvents().asReadOnlyByteBuffer(), packet.getEventCount(), packet.getTimeBaseUs(), batch, decoded);
-        if (!decoded.ok()) {
+        int count = packet.getEventCount();
+        java.nio.ByteBuffer bytes = packet.getEvents().asReadOnlyByteBuffer();
+        if ((long) count * EventPacketCodec.BYTES_PER_EVENT != bytes.remaining() || count > batch.capacity()) {
             counters.increment(NodeCounter.PACKETS_MALFORMED);
-            droppedSinceFrame += packet.getEventCount();
+            droppedSinceFrame += count;
             return;
         }
-        counters.add(NodeCounter.EVENTS_RECEIVED, packet.getEventCount());
-        int dropped = decoded.outsideSensor + decoded.offsetTooLarge;
-        counters.add(NodeCounter.EVENTS_OUTSIDE_SENSOR, dropped);
-        droppedSinceFrame += dropped;
-        if (batch.size == 0) {
+        if (count == 0) {
             return;
         }
-        long newest = batch.timeBaseUs + batch.maxT;
+        // Shed before decoding: the lag check uses the last record's time (packets are in time order).
+        long newest = packet.getTimeBaseUs() + (bytes.order(java.nio.ByteOrder.LITTLE_ENDIAN)
+                .getInt(bytes.position() + (count - 1) * EventPacketCodec.BYTES_PER_EVENT) & 0xFFFFFFFFL);
         if (lastFrameUs != Long.MIN_VALUE && newest < lastFrameUs - RESTART_THRESHOLD_US) {
             restart();
         }
@@ -256,8 +267,16 @@ public final class SensorPipeline {
         long nowUs = clock.monotonicNanos() / 1000;
         if (nowUs - clockMapper.toHostUs(newest) > budgetUs) {
             counters.increment(NodeCounter.PACKETS_SHED_LATENCY);
-            counters.add(NodeCounter.EVENTS_SHED_LATENCY, batch.size);
-            droppedSinceFrame += batch.size;
+            counters.add(NodeCounter.EVENTS_SHED_LATENCY, count);
+            droppedSinceFrame += count;
+            return;
+        }
+        codec.decode(bytes, count, packet.getTimeBaseUs(), batch, decoded);
+        counters.add(NodeCounter.EVENTS_RECEIVED, count);
+        int dropped = decoded.outsideSensor + decoded.offsetTooLarge;
+        counters.add(NodeCounter.EVENTS_OUTSIDE_SENSOR, dropped);
+        droppedSinceFrame += dropped;
+        if (batch.size == 0) {
             return;
         }
         if (!scheduleStarted) {

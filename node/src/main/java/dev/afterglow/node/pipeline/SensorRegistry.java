@@ -51,7 +51,7 @@ public final class SensorRegistry {
     private SensorPipeline create(SensorConfig s) {
         Counters c = sensorCounters.computeIfAbsent(s.id, k -> new Counters());
         SensorPipeline p = new SensorPipeline(s, pipelineGroup.next(), publisher, clock, c,
-                config.limits.maxPendingPackets, config.limits.maxEventsPerPacket);
+                config.limits.maxPendingPackets, config.limits.maxPendingBytes, config.limits.maxEventsPerPacket);
         sensors.put(s.id, p);
         return p;
     }

@@ -8,7 +8,7 @@ package dev.afterglow.node.stats;
 public enum NodeCounter {
     PACKETS_TCP(Scope.SENSOR, "afterglow.ingest.tcp.packets", "Event packets received over TCP"),
     PACKETS_UDP(Scope.SENSOR, "afterglow.ingest.udp.packets", "Event packets received over UDP"),
-    EVENTS_RECEIVED(Scope.SENSOR, "afterglow.ingest.events", "Events received in accepted packets"),
+    EVENTS_RECEIVED(Scope.SENSOR, "afterglow.ingest.events", "Events in packets that reached the chain (not shed, not malformed)"),
     SENSOR_FRAMES(Scope.SENSOR, "afterglow.ingest.sensor.frames", "The sensor's own frames received"),
     EVENTS_OUTSIDE_SENSOR(Scope.SENSOR, "afterglow.ingest.events.outside", "Events dropped: pixel outside the sensor"),
     EVENTS_LATE(Scope.SENSOR, "afterglow.ingest.events.late", "Events dropped: older than the last published frame (time going backwards)"),
