@@ -190,6 +190,48 @@ class HotPixelFilterTest {
         assertFalse(java.util.Arrays.equals(before, after), "a relearn over other hot pixels must change the mask");
     }
 
+    @Test
+    void shouldMaskOnlyPixelsWhoseCountExceedsTheThreshold() {
+        // 4x4 sensor, 1 s window. Case 1: min-rate dominates, threshold max(2 * 11/16, 5 Hz * 1 s) = 5:
+        // a pixel with 5 events stays, one with 6 is masked. Case 2: factor dominates, threshold
+        // max(4 * 32/16, 0) = 8: a pixel with 8 events stays, one with 9 is masked.
+        int[][][] cases = {
+            {{0, 5}, {1, 6}},
+            {{0, 8}, {1, 9}, {2, 2}, {3, 1}, {4, 1}, {5, 1}, {6, 1}, {7, 1}, {8, 1}, {9, 1}, {10, 1}, {11, 1}, {12, 1},
+                {13, 1}, {14, 1}, {15, 1}},
+        };
+        double[][] settings = {{2, 5}, {4, 0}};
+        for (int c = 0; c < cases.length; c++) {
+            HotPixelFilter f = new HotPixelFilter(4, 4, 1_000_000, settings[c][0], settings[c][1]);
+            NaiveHotPixel naive = new NaiveHotPixel(4, 4, 1_000_000, settings[c][0], settings[c][1]);
+            EventBatch b = new EventBatch(64);
+            b.reset(0);
+            long t = 0;
+            for (int[] pixelCount : cases[c]) {
+                for (int k = 0; k < pixelCount[1]; k++) {
+                    b.add(pixelCount[0] % 4, pixelCount[0] / 4, t, 1);
+                    t += 1_000;
+                }
+            }
+            b.add(0, 0, 1_000_000, 1); // ends the window, then is judged under the new mask
+            b.add(1, 0, 1_000_001, 1);
+            naive.startBatch();
+            EventLog want = new EventLog();
+            for (int i = 0; i < b.size; i++) {
+                if (naive.pass(b.x[i], b.y[i], b.timeUs(i))) {
+                    want.add(b.timeUs(i), b.x[i], b.y[i], b.p[i]);
+                }
+            }
+            f.process(b);
+            EventLog got = new EventLog();
+            got.addAll(b);
+            EventLog.assertSameEvents(want, got, "case " + c);
+            assertFalse(f.isMasked(0, 0), "case " + c + ": count equal to the threshold is not hot");
+            assertTrue(f.isMasked(1, 0), "case " + c + ": count above the threshold is hot");
+            assertEquals(1, f.maskedPixels());
+        }
+    }
+
     private static boolean[] maskOf(HotPixelFilter f, int w, int h) {
         boolean[] m = new boolean[w * h];
         for (int y = 0; y < h; y++) {
