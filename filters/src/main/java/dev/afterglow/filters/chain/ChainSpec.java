@@ -126,10 +126,10 @@ public final class ChainSpec {
         if (param == null) {
             List<String> keys = new ArrayList<>();
             kind.params().forEach(p -> keys.add(p.key()));
-            throw new ChainSpecException(setting + ": unknown parameter; expected one of " + keys);
+            throw new ChainSpecException(setting + "=" + valueText + ": unknown parameter; expected one of " + keys);
         }
         if (given.containsKey(key)) {
-            throw new ChainSpecException(setting + ": given twice");
+            throw new ChainSpecException(setting + "=" + valueText + ": given twice; at most once per stage");
         }
         Matcher m = VALUE.matcher(valueText);
         if (!m.matches()) {

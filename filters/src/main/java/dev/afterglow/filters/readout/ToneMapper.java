@@ -5,7 +5,8 @@ package dev.afterglow.filters.readout;
  *
  * <p>The range [lo, hi] (fixed, or from percentiles found with a {@value #BINS}-bin histogram
  * between the image's minimum and maximum, so they are exact to one bin width) is cut into
- * {@value #LUT_SIZE} steps, and a table gives the grey level of each step for the chosen curve.
+ * {@value #LUT_SIZE} steps (even in the position for LOG, even in its square root for GAMMA, which is
+ * steep at black), and a table gives the grey level of each step for the chosen curve.
  * Values outside the range clip to 0 or 255; NaN maps to 0. Cost per frame: two passes over the
  * image in percentile mode (min/max, histogram) plus the mapping pass; one pass in fixed mode.
  *
@@ -55,8 +56,13 @@ public final class ToneMapper {
             float max = Float.NEGATIVE_INFINITY;
             for (int i = 0; i < n; i++) {
                 float v = log[i];
-                min = Math.min(min, v);
-                max = Math.max(max, v);
+                // Plain comparisons skip NaN; Math.min/max would turn the whole range into NaN.
+                if (v < min) {
+                    min = v;
+                }
+                if (v > max) {
+                    max = v;
+                }
             }
             if (!(max > min)) { // flat image, empty or NaN-only
                 lo = Float.isFinite(min) ? min - 0.5 : -0.5;
@@ -74,8 +80,19 @@ public final class ToneMapper {
         lastHigh = hi;
         buildLut(hi - lo);
         float flo = (float) lo;
-        float scale = (float) ((LUT_SIZE - 1) / (hi - lo));
         byte[] table = lut;
+        if (settings.curve() == ToneMap.Curve.GAMMA) {
+            // GAMMA rises like u^(1/2.2) at black, too steeply for even steps of u (3 levels off
+            // there), so its table is indexed by sqrt(u); below lo the root is NaN: step 0.
+            float inv = (float) (1 / (hi - lo));
+            for (int i = 0; i < n; i++) {
+                float u = (float) Math.sqrt((log[i] - flo) * inv) * (LUT_SIZE - 1);
+                int step = u >= LUT_SIZE - 1 ? LUT_SIZE - 1 : (u > 0 ? (int) (u + 0.5f) : 0);
+                out[i] = table[step];
+            }
+            return;
+        }
+        float scale = (float) ((LUT_SIZE - 1) / (hi - lo));
         for (int i = 0; i < n; i++) {
             float u = (log[i] - flo) * scale;
             // NaN fails both comparisons and lands on step 0.
@@ -132,7 +149,8 @@ public final class ToneMapper {
         }
         double denom = Math.expm1(range);
         for (int k = 0; k < LUT_SIZE; k++) {
-            double u = (double) k / (LUT_SIZE - 1);
+            double root = (double) k / (LUT_SIZE - 1);
+            double u = root * root; // steps are even in sqrt(u), see apply()
             double linear = Math.expm1(range * u) / denom;
             lut[k] = (byte) Math.round(255.0 * Math.pow(linear, 1 / 2.2));
         }

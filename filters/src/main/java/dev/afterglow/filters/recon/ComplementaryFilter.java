@@ -17,7 +17,7 @@ import java.nio.ByteBuffer;
  * when a frame is applied.
  *
  * <p>Implementation: the deviation {@code D = L - L_F} decays exponentially, so it is kept as
- * scaled float state on a {@link DecayClock} with one origin and one cut-off per class; an event
+ * scaled double state on a {@link DecayClock} with one origin and one cut-off per class; an event
  * costs a class lookup, two table lookups and a multiply-add, readout {@code L_F + D·scale[class]}
  * per pixel. Applying a frame moves the origin to the frame's time in the same pass that swaps L_F.
  *
@@ -27,12 +27,12 @@ import java.nio.ByteBuffer;
 public final class ComplementaryFilter implements Reconstruction {
     private final int width;
     private final int height;
-    private final float contrast;
+    private final double contrast;
     private final double cutoffRadPerS;
     private final double lowCutoffRadPerS;
     private final SensorFrameLog frameLog;
     private final DecayClock clock;
-    private final float[] deviation;
+    private final double[] deviation;
     private final float[] frameLogIntensity;
     private final byte[] cls;
     private final float[] scratchLog;
@@ -60,13 +60,13 @@ public final class ComplementaryFilter implements Reconstruction {
         }
         this.width = width;
         this.height = height;
-        this.contrast = (float) contrast;
+        this.contrast = contrast;
         this.cutoffRadPerS = cutoffRadPerS;
         this.lowCutoffRadPerS = lowCutoffRadPerS;
         this.frameLog = new SensorFrameLog(saturatedFraction, darkFraction);
         this.clock = new DecayClock(cutoffRadPerS, lowCutoffRadPerS);
         int n = width * height;
-        this.deviation = new float[n];
+        this.deviation = new double[n];
         this.frameLogIntensity = new float[n];
         this.cls = new byte[n];
         this.scratchLog = new float[n];
@@ -88,14 +88,14 @@ public final class ComplementaryFilter implements Reconstruction {
             // Start at the earliest event, not the batch base, so results do not depend on batching.
             clock.start(batch.minTimeUs());
         }
-        float[] s = deviation;
+        double[] s = deviation;
         byte[] k = cls;
         int[] xs = batch.x;
         int[] ys = batch.y;
         int[] ts = batch.t;
         byte[] ps = batch.p;
         int w = width;
-        float c = contrast;
+        double c = contrast;
         long span = clock.spanUs();
         long base = batch.timeBaseUs - clock.originUs();
         for (int i = 0; i < n; i++) {
@@ -115,13 +115,13 @@ public final class ComplementaryFilter implements Reconstruction {
     }
 
     private void moveOrigin(long newOriginUs) {
-        float f0 = (float) clock.renormaliseFactor(0, newOriginUs);
-        float f1 = (float) clock.renormaliseFactor(1, newOriginUs);
-        float[] s = deviation;
+        double f0 = clock.renormaliseFactor(0, newOriginUs);
+        double f1 = clock.renormaliseFactor(1, newOriginUs);
+        double[] s = deviation;
         byte[] k = cls;
         for (int i = 0; i < s.length; i++) {
-            float v = s[i] * (k[i] == 0 ? f0 : f1);
-            s[i] = Math.abs(v) < StateScaling.FLUSH ? 0f : v;
+            double v = s[i] * (k[i] == 0 ? f0 : f1);
+            s[i] = Math.abs(v) < StateScaling.FLUSH ? 0 : v;
         }
         clock.moveOrigin(newOriginUs);
     }
@@ -150,16 +150,16 @@ public final class ComplementaryFilter implements Reconstruction {
         if (!clock.started()) {
             clock.start(timeUs);
         }
-        float f0 = (float) clock.renormaliseFactor(0, timeUs);
-        float f1 = (float) clock.renormaliseFactor(1, timeUs);
-        float[] s = deviation;
+        double f0 = clock.renormaliseFactor(0, timeUs);
+        double f1 = clock.renormaliseFactor(1, timeUs);
+        double[] s = deviation;
         float[] lf = frameLogIntensity;
         byte[] k = cls;
         for (int i = 0; i < n; i++) {
-            float level = lf[i] + s[i] * (k[i] == 0 ? f0 : f1);
+            double level = lf[i] + s[i] * (k[i] == 0 ? f0 : f1);
             float next = logIntensity[i];
-            float v = level - next;
-            s[i] = Math.abs(v) < StateScaling.FLUSH ? 0f : v;
+            double v = level - next;
+            s[i] = Math.abs(v) < StateScaling.FLUSH ? 0 : v;
             lf[i] = next;
             k[i] = pixelClass[i] == 0 ? (byte) 0 : (byte) 1;
         }
@@ -170,13 +170,13 @@ public final class ComplementaryFilter implements Reconstruction {
 
     @Override
     public void readLog(long timeUs, float[] out) {
-        float f0 = (float) clock.scaleAt(0, timeUs);
-        float f1 = (float) clock.scaleAt(1, timeUs);
-        float[] s = deviation;
+        double f0 = clock.scaleAt(0, timeUs);
+        double f1 = clock.scaleAt(1, timeUs);
+        double[] s = deviation;
         float[] lf = frameLogIntensity;
         byte[] k = cls;
         for (int i = 0; i < s.length; i++) {
-            out[i] = lf[i] + s[i] * (k[i] == 0 ? f0 : f1);
+            out[i] = (float) (lf[i] + s[i] * (k[i] == 0 ? f0 : f1));
         }
     }
 

@@ -18,7 +18,7 @@ package dev.afterglow.filters.recon;
 final class DecayClock {
     private static final int FINE_BITS = 10;
     private static final int FINE = 1 << FINE_BITS;
-    /** Largest a·d before renormalising: e^24 ≈ 2.6e10 keeps float state far from overflow. */
+    /** Largest a·d before renormalising: e^24 ≈ 2.6e10 keeps the scaled state far from overflow. */
     private static final double MAX_EXPONENT = 24.0;
     /** Largest span in microseconds, so the coarse table stays small for slow cut-offs. */
     private static final int MAX_SPAN_US = 1 << 22;

@@ -9,7 +9,8 @@ import dev.afterglow.filters.StageCounters;
  * cut-off a in rad/s and dt the time since the pixel's last update. Its transfer function from log
  * intensity to output is s/(s+a): accumulated noise decays, but a static background is lost.
  *
- * <p>Implemented with a shared {@link DecayClock}: float scaled state per pixel, two table lookups
+ * <p>Implemented with a shared {@link DecayClock}: double scaled state per pixel (float state drifted
+ * by more than 1e-4·C on busy pixels at low cut-offs), two table lookups
  * and a multiply-add per event, one multiply per pixel at readout, and a rescaling pass at most
  * once per {@link DecayClock#spanUs()} of sensor time (under a second for a ≥ 24 rad/s, about 4 s
  * otherwise). The exact result does not depend on event order within the clock's span; an event
@@ -21,10 +22,10 @@ import dev.afterglow.filters.StageCounters;
 public final class HighPassFilter implements Reconstruction {
     private final int width;
     private final int height;
-    private final float contrast;
+    private final double contrast;
     private final double cutoffRadPerS;
     private final DecayClock clock;
-    private final float[] state;
+    private final double[] state;
     private final StageCounters counters = new StageCounters();
     private long lateEvents;
 
@@ -39,10 +40,10 @@ public final class HighPassFilter implements Reconstruction {
         ReconstructionChecks.cutoff("high-pass.cutoff", cutoffRadPerS, false);
         this.width = width;
         this.height = height;
-        this.contrast = (float) contrast;
+        this.contrast = contrast;
         this.cutoffRadPerS = cutoffRadPerS;
         this.clock = new DecayClock(cutoffRadPerS);
-        this.state = new float[width * height];
+        this.state = new double[width * height];
     }
 
     @Override
@@ -60,13 +61,13 @@ public final class HighPassFilter implements Reconstruction {
             // Start at the earliest event, not the batch base, so results do not depend on batching.
             clock.start(batch.minTimeUs());
         }
-        float[] s = state;
+        double[] s = state;
         int[] xs = batch.x;
         int[] ys = batch.y;
         int[] ts = batch.t;
         byte[] ps = batch.p;
         int w = width;
-        float c = contrast;
+        double c = contrast;
         long span = clock.spanUs();
         long base = batch.timeBaseUs - clock.originUs();
         for (int i = 0; i < n; i++) {
@@ -85,22 +86,22 @@ public final class HighPassFilter implements Reconstruction {
     }
 
     private void renormalise(long newOriginUs) {
-        float f = (float) clock.renormaliseFactor(0, newOriginUs);
+        double f = clock.renormaliseFactor(0, newOriginUs);
         StateScaling.scale(state, f);
         clock.moveOrigin(newOriginUs);
     }
 
     @Override
     public void readLog(long timeUs, float[] out) {
-        float f = (float) clock.scaleAt(0, timeUs);
-        float[] s = state;
+        double f = clock.scaleAt(0, timeUs);
+        double[] s = state;
         int n = s.length;
         if (f < Float.MIN_NORMAL) {
             java.util.Arrays.fill(out, 0, n, 0f);
             return;
         }
         for (int i = 0; i < n; i++) {
-            out[i] = s[i] * f;
+            out[i] = (float) (s[i] * f);
         }
     }
 
