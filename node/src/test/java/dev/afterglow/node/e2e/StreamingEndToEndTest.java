@@ -67,17 +67,19 @@ class StreamingEndToEndTest {
             waitFor(() -> node.publisher().count() == 1);
             if (udp) {
                 try (UdpSensorClient sensor = new UdpSensorClient("127.0.0.1", node.ingestUdpPort(), "belt")) {
-                    for (int i = 0; i < packets.size(); i++) {
-                        sensor.sendEvents(packets.get(i));
-                        if (i % 20 == 0) {
-                            Thread.sleep(1); // pace a little so the loopback socket buffer never overflows
-                        }
+                    long start = System.nanoTime();
+                    for (EventBatch b : packets) {
+                        paceRealTime(start, b.timeBaseUs + 1_000);
+                        sensor.sendEvents(b);
                     }
                 }
             } else {
                 try (SensorClient sensor = SensorClient.connect("127.0.0.1", node.ingestTcpPort(), "belt", W, H, false)) {
+                    long start = System.nanoTime();
                     for (EventBatch b : packets) {
+                        paceRealTime(start, b.timeBaseUs + 1_000);
                         sensor.sendEvents(b);
+                        sensor.flush();
                     }
                 }
             }
@@ -145,6 +147,14 @@ class StreamingEndToEndTest {
             } else {
                 assertEquals(packets.size(), counters.get(NodeCounter.PACKETS_TCP));
             }
+        }
+    }
+
+    /** Sleeps until {@code sensorUs} of sensor time have passed since {@code startNanos}: a sensor streams in real time. */
+    static void paceRealTime(long startNanos, long sensorUs) throws InterruptedException {
+        long wait = startNanos + sensorUs * 1000 - System.nanoTime();
+        if (wait > 0) {
+            TimeUnit.NANOSECONDS.sleep(wait);
         }
     }
 
