@@ -1,0 +1,107 @@
+#!/usr/bin/env python3
+"""Subscribe to an Afterglow node and receive intensity frames as numpy arrays.
+
+Needs python3-protobuf and python3-numpy, and Python code generated from the schema:
+
+    protoc --python_out=GEN -Iproto/src/main/proto proto/src/main/proto/afterglow/v1/afterglow.proto
+    PYTHONPATH=GEN python3 examples/python/afterglow_subscribe.py --sensor conveyor-cam --count 20
+
+Each frame arrives as a varint-length-delimited Envelope; pixels become a numpy array of shape
+(height, width): uint8 for gray8 frames, float32 natural-log intensity for log-f32 frames.
+"""
+import argparse
+import socket
+import sys
+
+import numpy as np
+
+from afterglow.v1 import afterglow_pb2 as pb
+
+
+def read_varint(sock_file):
+    """Reads a protobuf base-128 varint; returns None at end of stream."""
+    shift = 0
+    value = 0
+    while True:
+        b = sock_file.read(1)
+        if not b:
+            return None
+        value |= (b[0] & 0x7F) << shift
+        if b[0] < 0x80:
+            return value
+        shift += 7
+        if shift >= 35:
+            raise ValueError("length prefix longer than 5 bytes")
+
+
+def read_envelope(sock_file):
+    length = read_varint(sock_file)
+    if length is None:
+        return None
+    data = sock_file.read(length)
+    if len(data) != length:
+        return None
+    env = pb.Envelope()
+    env.ParseFromString(data)
+    return env
+
+
+def write_envelope(sock, env):
+    body = env.SerializeToString()
+    prefix = bytearray()
+    n = len(body)
+    while True:
+        byte = n & 0x7F
+        n >>= 7
+        prefix.append(byte | (0x80 if n else 0))
+        if not n:
+            break
+    sock.sendall(bytes(prefix) + body)
+
+
+def frame_to_array(frame):
+    """The frame's pixels as a (height, width) numpy array."""
+    if frame.format == pb.PIXEL_FORMAT_LOG_F32:
+        return np.frombuffer(frame.pixels, dtype="<f4").reshape(frame.height, frame.width)
+    return np.frombuffer(frame.pixels, dtype=np.uint8).reshape(frame.height, frame.width)
+
+
+def main():
+    ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    ap.add_argument("--host", default="127.0.0.1")
+    ap.add_argument("--port", type=int, default=7303)
+    ap.add_argument("--sensor", default="conveyor-cam")
+    ap.add_argument("--rate", type=float, default=10.0, help="frames per second wanted (0: all)")
+    ap.add_argument("--format", choices=["gray8", "log-f32"], default="gray8")
+    ap.add_argument("--count", type=int, default=10, help="frames to receive (0: forever)")
+    ap.add_argument("--timeout", type=float, default=10.0, help="seconds to wait for a frame")
+    args = ap.parse_args()
+
+    sock = socket.create_connection((args.host, args.port), timeout=args.timeout)
+    env = pb.Envelope(schema_version=1)
+    env.subscribe.sensor_id = args.sensor
+    env.subscribe.rate_hz = args.rate
+    env.subscribe.format = pb.PIXEL_FORMAT_LOG_F32 if args.format == "log-f32" else pb.PIXEL_FORMAT_GRAY8
+    write_envelope(sock, env)
+    f = sock.makefile("rb")
+    received = 0
+    while args.count == 0 or received < args.count:
+        msg = read_envelope(f)
+        if msg is None:
+            print("node closed the connection", file=sys.stderr)
+            return 1
+        if msg.HasField("error"):
+            print(f"refused: {msg.error.code}: {msg.error.message}", file=sys.stderr)
+            return 2
+        frame = msg.intensity_frame
+        img = frame_to_array(frame)
+        p = frame.provenance
+        print(f"frame seq={frame.sequence} t_us={frame.frame_time_us} shape={img.shape} dtype={img.dtype} "
+              f"mean={float(img.mean()):.3f} min={float(img.min()):.3f} max={float(img.max()):.3f} "
+              f"applied={p.events_applied} age_us={p.sensor_to_publish_us}")
+        received += 1
+    return 0
+
+
+if __name__ == "__main__":
+    sys.exit(main())
