@@ -13,7 +13,7 @@ import picocli.CommandLine.Command;
         mixinStandardHelpOptions = true,
         version = "afterglow 0.1.0",
         description = "Live event-camera intensity reconstruction.",
-        subcommands = {DemoCommand.class, StagesCommand.class, CommandLine.HelpCommand.class})
+        subcommands = {DemoCommand.class, StagesCommand.class, dev.afterglow.node.assess.AssessCommand.class, CommandLine.HelpCommand.class})
 public final class AfterglowCli implements Runnable {
 
     @CommandLine.Spec
