@@ -517,6 +517,25 @@ class SyntheticSensorTest {
     }
 
     @Test
+    void shouldKeepTheLatestFourFramesWhenNobodyPolls() {
+        int w = 32;
+        int h = 24;
+        SyntheticSensor sensor = new SyntheticSensor(new TestScenes.Still(w, h, new float[w * h]),
+                SensorConfig.builder(w, h).ideal().frames(20, 10_000).build());
+        assertEquals(10_000, sensor.nextFrameDueUs());
+        sensor.step(400_000, new EventBatch(64)); // frames 0..7 end by then
+        assertEquals(4, sensor.framesDropped());
+        for (long k = 4; k < 8; k++) {
+            SensorFrame f = sensor.pollFrame();
+            assertEquals(k, f.index());
+            assertEquals(k * 50_000, f.exposureStartUs());
+            assertEquals(k * 50_000 + 5_000, f.midExposureUs());
+        }
+        assertNull(sensor.pollFrame());
+        assertEquals(410_000, sensor.nextFrameDueUs());
+    }
+
+    @Test
     void shouldGiveTheSceneAsGroundTruth() {
         int w = 64;
         int h = 48;

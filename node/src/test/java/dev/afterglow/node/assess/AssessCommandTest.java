@@ -118,6 +118,22 @@ class AssessCommandTest {
     }
 
     @Test
+    void shouldWriteTheSameMetricsAndPictureForTheSameSeed(@TempDir Path a, @TempDir Path b) throws Exception {
+        String[] args = {"assess", "--scene", "orchard-pan", "--width", "48", "--height", "36", "--seconds", "1",
+            "--warmup", "0.2", "--snapshots", "1", "--seed", "3"};
+        assertEquals(0, run(concat(args, "--out", a.toString())).code());
+        assertEquals(0, run(concat(args, "--out", b.toString())).code());
+        assertEquals(-1L, Files.mismatch(a.resolve("orchard-pan-metrics.csv"), b.resolve("orchard-pan-metrics.csv")));
+        assertEquals(-1L, Files.mismatch(a.resolve("orchard-pan-contact.png"), b.resolve("orchard-pan-contact.png")));
+    }
+
+    private static String[] concat(String[] head, String... tail) {
+        String[] all = java.util.Arrays.copyOf(head, head.length + tail.length);
+        System.arraycopy(tail, 0, all, head.length, tail.length);
+        return all;
+    }
+
+    @Test
     void tinyFontShouldCoverEveryCharacterTheSheetWrites() {
         String all = "abcdefghijklmnopqrstuvwxyz0123456789 .,:;-+=/()%_<>'*|#";
         for (char c : all.toCharArray()) {
