@@ -66,7 +66,7 @@ class AfterglowCliTest {
         assertEquals(0, code);
         String out = captured.toString(StandardCharsets.UTF_8);
         // About 2 s at 10 frames/s; frames due while the JIT warms up may be shed on a loaded machine.
-        long frames = out.lines().filter(l -> l.startsWith("conveyor-cam #")).count();
+        long frames = out.lines().filter(l -> l.startsWith("parcel-line #")).count();
         assertTrue(frames >= 10 && frames <= 20, frames + " frames\n" + out);
         assertTrue(out.contains(frames + " frames received"), out);
         List<Path> pngs;

@@ -1,5 +1,6 @@
 package dev.afterglow.node.cli;
 
+import dev.afterglow.filters.synth.SceneKind;
 import dev.afterglow.node.AfterglowNode;
 import dev.afterglow.node.client.SensorClient;
 import dev.afterglow.node.client.SubscriberClient;
@@ -14,23 +15,26 @@ import picocli.CommandLine.Command;
 import picocli.CommandLine.Option;
 
 /**
- * The demo: a node on loopback, the built-in synthetic sensor streaming the conveyor scene into it
+ * The demo: a node on loopback, the built-in synthetic sensor streaming a scene into it
  * over TCP in real time, and a subscriber that prints one line per frame and saves PNG snapshots.
  */
 @Command(name = "demo", mixinStandardHelpOptions = true,
-        description = "Start a node on loopback, stream the synthetic conveyor scene into it, print frames and save PNG snapshots.")
+        description = "Start a node on loopback, stream a synthetic scene into it, print frames and save PNG snapshots.")
 public final class DemoCommand implements Callable<Integer> {
 
     @Option(names = "--chain", paramLabel = "CHAIN", description = "Chain description (see 'afterglow stages'). Default: ${DEFAULT-VALUE}")
     String chain = "refractory(period=1ms) | background-activity(window=10ms) | high-pass(cutoff=3rad/s, contrast=0.2)";
 
+    @Option(names = "--scene", description = "parcel-line, dock-door or orchard-pan. Default: ${DEFAULT-VALUE}")
+    String scene = "parcel-line";
+
     @Option(names = "--seconds", description = "How long to run, 1 .. 3600 s. Default: ${DEFAULT-VALUE}")
     double seconds = 6;
 
-    @Option(names = "--width", description = "16 .. 1280. Default: ${DEFAULT-VALUE}")
+    @Option(names = "--width", description = "32 .. 1280. Default: ${DEFAULT-VALUE}")
     int width = 320;
 
-    @Option(names = "--height", description = "16 .. 720. Default: ${DEFAULT-VALUE}")
+    @Option(names = "--height", description = "24 .. 720. Default: ${DEFAULT-VALUE}")
     int height = 240;
 
     @Option(names = "--rate", description = "Node frame rate, 1 .. 1000 Hz. Default: ${DEFAULT-VALUE}")
@@ -51,13 +55,14 @@ public final class DemoCommand implements Callable<Integer> {
     @Override
     public Integer call() throws Exception {
         Checks.range("--seconds", seconds, 1, 3600);
-        Checks.range("--width", width, 16, 1280);
-        Checks.range("--height", height, 16, 720);
+        SceneKind kind = Scenes.parse("--scene", scene);
+        Checks.range("--width", width, SceneKind.MIN_WIDTH, 1280);
+        Checks.range("--height", height, SceneKind.MIN_HEIGHT, 720);
         Checks.range("--rate", rate, 1, 1000);
         Checks.range("--watch-rate", watchRate, 1, 1000);
         Checks.range("--noise", noiseHz, 0, 100);
         Checks.range("--save-every", saveEvery, 1, 100_000);
-        String sensorId = "conveyor-cam";
+        String sensorId = kind.label();
         NodeConfig config = NodeConfig.parse("""
                 listen:
                   ingest-tcp-port: 0
@@ -77,7 +82,7 @@ public final class DemoCommand implements Callable<Integer> {
             AtomicReference<Exception> feedError = new AtomicReference<>();
             Thread feeder = new Thread(() -> {
                 try (SensorClient c = SensorClient.connect("127.0.0.1", node.ingestTcpPort(), sensorId, width, height, true)) {
-                    new SyntheticFeed(width, height, noiseHz, 7).run(SyntheticFeed.tcp(c), sensorId, seconds, 1000, 1, true);
+                    new SyntheticFeed(kind, width, height, noiseHz, 7).run(SyntheticFeed.tcp(c), sensorId, seconds, 1000, 1, true);
                 } catch (InterruptedException e) {
                     Thread.currentThread().interrupt();
                 } catch (Exception e) {

@@ -1,5 +1,6 @@
 package dev.afterglow.node.cli;
 
+import dev.afterglow.filters.synth.SceneKind;
 import dev.afterglow.node.client.SensorClient;
 import dev.afterglow.node.client.UdpSensorClient;
 import dev.afterglow.node.demo.SyntheticFeed;
@@ -8,9 +9,9 @@ import java.util.concurrent.Callable;
 import picocli.CommandLine.Command;
 import picocli.CommandLine.Option;
 
-/** Acts as a sensor: streams the synthetic conveyor scene into a running node. */
+/** Acts as a sensor: streams a synthetic scene into a running node. */
 @Command(name = "feed", mixinStandardHelpOptions = true,
-        description = "Act as a sensor: stream the synthetic scene into a running node over TCP or UDP.")
+        description = "Act as a sensor: stream a synthetic scene into a running node over TCP or UDP.")
 public final class FeedCommand implements Callable<Integer> {
 
     @Option(names = "--node", paramLabel = "HOST:PORT", description = "Node's sensor port (TCP or UDP). Default: ${DEFAULT-VALUE}")
@@ -19,13 +20,16 @@ public final class FeedCommand implements Callable<Integer> {
     @Option(names = "--transport", description = "tcp or udp. Default: ${DEFAULT-VALUE}")
     String transport = "tcp";
 
-    @Option(names = "--sensor-id", description = "Sensor id. Default: ${DEFAULT-VALUE}")
-    String sensorId = "conveyor-cam";
+    @Option(names = "--scene", description = "parcel-line, dock-door or orchard-pan. Default: ${DEFAULT-VALUE}")
+    String scene = "parcel-line";
 
-    @Option(names = "--width", description = "16 .. 1280. Default: ${DEFAULT-VALUE}")
+    @Option(names = "--sensor-id", description = "Sensor id. Default: the scene's name.")
+    String sensorId;
+
+    @Option(names = "--width", description = "32 .. 1280. Default: ${DEFAULT-VALUE}")
     int width = 320;
 
-    @Option(names = "--height", description = "16 .. 720. Default: ${DEFAULT-VALUE}")
+    @Option(names = "--height", description = "24 .. 720. Default: ${DEFAULT-VALUE}")
     int height = 240;
 
     @Option(names = "--seconds", description = "Sensor time to stream, 0 (until stopped) .. 86400. Default: ${DEFAULT-VALUE}")
@@ -49,8 +53,10 @@ public final class FeedCommand implements Callable<Integer> {
     @Override
     public Integer call() throws Exception {
         HostPort target = HostPort.parse("--node", node);
-        Checks.range("--width", width, 16, 1280);
-        Checks.range("--height", height, 16, 720);
+        SceneKind kind = Scenes.parse("--scene", scene);
+        String id = sensorId == null ? kind.label() : sensorId;
+        Checks.range("--width", width, SceneKind.MIN_WIDTH, 1280);
+        Checks.range("--height", height, SceneKind.MIN_HEIGHT, 720);
         Checks.range("--seconds", seconds, 0, 86400);
         Checks.range("--speed", speed, 0, 100);
         Checks.range("--packet-us", packetUs, 100, 100_000);
@@ -58,16 +64,16 @@ public final class FeedCommand implements Callable<Integer> {
         if (!transport.equals("tcp") && !transport.equals("udp")) {
             throw new IllegalArgumentException("--transport=" + transport + ": expected tcp or udp");
         }
-        SyntheticFeed feed = new SyntheticFeed(width, height, noiseHz, seed);
+        SyntheticFeed feed = new SyntheticFeed(kind, width, height, noiseHz, seed);
         long sent;
         long start = System.nanoTime();
         if (transport.equals("tcp")) {
-            try (SensorClient c = SensorClient.connect(target.host(), target.port(), sensorId, width, height, frames)) {
-                sent = feed.run(SyntheticFeed.tcp(c), sensorId, seconds, packetUs, speed, frames);
+            try (SensorClient c = SensorClient.connect(target.host(), target.port(), id, width, height, frames)) {
+                sent = feed.run(SyntheticFeed.tcp(c), id, seconds, packetUs, speed, frames);
             }
         } else {
-            try (UdpSensorClient c = new UdpSensorClient(target.host(), target.port(), sensorId)) {
-                sent = feed.run(SyntheticFeed.udp(c), sensorId, seconds, packetUs, speed, false);
+            try (UdpSensorClient c = new UdpSensorClient(target.host(), target.port(), id)) {
+                sent = feed.run(SyntheticFeed.udp(c), id, seconds, packetUs, speed, false);
             }
         }
         double wall = (System.nanoTime() - start) * 1e-9;

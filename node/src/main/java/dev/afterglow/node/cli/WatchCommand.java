@@ -16,7 +16,7 @@ public final class WatchCommand implements Callable<Integer> {
     String node = "127.0.0.1:7303";
 
     @Option(names = "--sensor-id", description = "Sensor to watch. Default: ${DEFAULT-VALUE}")
-    String sensorId = "conveyor-cam";
+    String sensorId = "parcel-line";
 
     @Option(names = "--rate", description = "Frames per second wanted, 0 (all) .. 1000. Default: ${DEFAULT-VALUE}")
     double rate = 10;

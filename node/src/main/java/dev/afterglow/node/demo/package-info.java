@@ -1,2 +1,2 @@
-/** The built-in demo: a synthetic conveyor scene streamed through a chain, with PNG snapshots. */
+/** The built-in demo: a synthetic sensor played into a node as a real sensor would, and PNG output. */
 package dev.afterglow.node.demo;

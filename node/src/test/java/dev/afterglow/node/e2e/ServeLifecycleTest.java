@@ -56,12 +56,14 @@ class ServeLifecycleTest {
                 SensorClient sensor = SensorClient.connect("127.0.0.1", ingest, "dock", 32, 24, false)) {
             sub.setTimeoutMillis(10_000);
             EventBatch b = new EventBatch(4);
+            long start = System.nanoTime();
             for (int k = 0; k < 5; k++) {
+                StreamingEndToEndTest.paceRealTime(start, k * 20_000L + 1);
                 b.reset(k * 20_000L);
                 b.add(k, 1, k * 20_000L + 1, 1);
                 sensor.sendEvents(b);
+                sensor.flush();
             }
-            sensor.flush();
             assertEquals(20_000, sub.next().getFrameTimeUs(), "the node serves frames");
 
             StringBuilder rest = new StringBuilder();
