@@ -15,7 +15,9 @@ package dev.afterglow.filters.readout;
 public final class ToneMapper {
     /** Histogram bins used to find percentiles. */
     public static final int BINS = 4096;
-    /** Steps of the lookup table from the mapped range to grey levels. */
+    /** Pixels sampled at least for the range and the percentiles. */
+    public static final int MIN_SAMPLES = 1 << 14;
+    /** Steps of the lookup table from the mapped range to grey levels (GAMMA curve). */
     public static final int LUT_SIZE = 4096;
 
     private final ToneMap settings;
@@ -52,23 +54,20 @@ public final class ToneMapper {
             lo = settings.low();
             hi = settings.high();
         } else {
+            int stride = sampleStride(n);
             float min = Float.POSITIVE_INFINITY;
             float max = Float.NEGATIVE_INFINITY;
-            for (int i = 0; i < n; i++) {
+            for (int i = 0; i < n; i += stride) {
                 float v = log[i];
-                // Plain comparisons skip NaN; Math.min/max would turn the whole range into NaN.
-                if (v < min) {
-                    min = v;
-                }
-                if (v > max) {
-                    max = v;
-                }
+                // Plain comparisons skip NaN (Math.min/max would spread it).
+                min = v < min ? v : min;
+                max = v > max ? v : max;
             }
             if (!(max > min)) { // flat image, empty or NaN-only
                 lo = Float.isFinite(min) ? min - 0.5 : -0.5;
                 hi = lo + 1;
             } else {
-                long total = fillHistogram(log, n, min, max);
+                long total = fillHistogram(log, n, stride, min, max);
                 lo = percentileValue(total, min, max, settings.low());
                 hi = percentileValue(total, min, max, settings.high());
                 if (!(hi > lo)) {
@@ -92,22 +91,32 @@ public final class ToneMapper {
             }
             return;
         }
-        float scale = (float) ((LUT_SIZE - 1) / (hi - lo));
+        // LOG curve: grey level linear in log intensity, computed directly (no table) so the JIT
+        // can vectorise the loop. NaN survives min/max and converts to 0.
+        float gain = (float) (255.0 / (hi - lo));
+        float offset = (float) (0.5 - lo * 255.0 / (hi - lo));
         for (int i = 0; i < n; i++) {
-            float u = (log[i] - flo) * scale;
-            // NaN fails both comparisons and lands on step 0.
-            int step = u >= LUT_SIZE - 1 ? LUT_SIZE - 1 : (u > 0 ? (int) (u + 0.5f) : 0);
-            out[i] = table[step];
+            float g = Math.min(255.5f, Math.max(0f, log[i] * gain + offset));
+            out[i] = (byte) (int) g;
         }
     }
 
+    /**
+     * Percentiles come from every {@code stride}-th pixel, at least {@value #MIN_SAMPLES} of them:
+     * exact (to one bin) on small images, a regular subsample on large ones, where the sampling
+     * error of a percentile is far below one grey level.
+     */
+    static int sampleStride(int n) {
+        return Math.max(1, (n + MIN_SAMPLES - 1) / MIN_SAMPLES);
+    }
+
     /** Histogram of {@code log[0..n)} over [min, max]; returns the number of pixels counted. */
-    private long fillHistogram(float[] log, int n, float min, float max) {
+    private long fillHistogram(float[] log, int n, int stride, float min, float max) {
         int[] h = histogram;
         java.util.Arrays.fill(h, 0);
         float scale = (BINS - 1) / (max - min);
         long total = 0;
-        for (int i = 0; i < n; i++) {
+        for (int i = 0; i < n; i += stride) {
             float u = (log[i] - min) * scale;
             if (u >= 0) { // skips NaN
                 h[Math.min(BINS - 1, (int) u)]++;
@@ -135,13 +144,7 @@ public final class ToneMapper {
 
     private void buildLut(double range) {
         if (settings.curve() == ToneMap.Curve.LOG) {
-            if (Double.isNaN(lutRange)) {
-                for (int k = 0; k < LUT_SIZE; k++) {
-                    lut[k] = (byte) Math.round(255.0 * k / (LUT_SIZE - 1));
-                }
-                lutRange = 0;
-            }
-            return;
+            return; // computed directly in apply()
         }
         // GAMMA: grey = 255 * ((e^{r u} - 1) / (e^r - 1))^(1/2.2), u in [0, 1]; depends only on r.
         if (Math.abs(range - lutRange) <= 1e-4 * Math.abs(range)) {
