@@ -22,6 +22,7 @@ public final class ToneMapper {
 
     private final ToneMap settings;
     private final int[] histogram = new int[BINS];
+    private final float[] samples = new float[2 * MIN_SAMPLES];
     private final byte[] lut = new byte[LUT_SIZE];
     private double lutRange = Double.NaN;
     private double lastLow;
@@ -54,11 +55,15 @@ public final class ToneMapper {
             lo = settings.low();
             hi = settings.high();
         } else {
+            // Copy a regular subsample once; the range and the histogram then read that small buffer.
             int stride = sampleStride(n);
+            float[] sample = samples;
+            int m = 0;
             float min = Float.POSITIVE_INFINITY;
             float max = Float.NEGATIVE_INFINITY;
             for (int i = 0; i < n; i += stride) {
                 float v = log[i];
+                sample[m++] = v;
                 // Plain comparisons skip NaN (Math.min/max would spread it).
                 min = v < min ? v : min;
                 max = v > max ? v : max;
@@ -67,7 +72,7 @@ public final class ToneMapper {
                 lo = Float.isFinite(min) ? min - 0.5 : -0.5;
                 hi = lo + 1;
             } else {
-                long total = fillHistogram(log, n, stride, min, max);
+                long total = fillHistogram(sample, m, min, max);
                 lo = percentileValue(total, min, max, settings.low());
                 hi = percentileValue(total, min, max, settings.high());
                 if (!(hi > lo)) {
@@ -111,12 +116,12 @@ public final class ToneMapper {
     }
 
     /** Histogram of {@code log[0..n)} over [min, max]; returns the number of pixels counted. */
-    private long fillHistogram(float[] log, int n, int stride, float min, float max) {
+    private long fillHistogram(float[] log, int n, float min, float max) {
         int[] h = histogram;
         java.util.Arrays.fill(h, 0);
         float scale = (BINS - 1) / (max - min);
         long total = 0;
-        for (int i = 0; i < n; i += stride) {
+        for (int i = 0; i < n; i++) {
             float u = (log[i] - min) * scale;
             if (u >= 0) { // skips NaN
                 h[Math.min(BINS - 1, (int) u)]++;
