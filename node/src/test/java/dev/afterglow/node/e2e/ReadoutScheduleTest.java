@@ -26,7 +26,7 @@ class ReadoutScheduleTest {
         NodeConfig config = NodeConfig.parse("""
                 listen: {ingest-tcp-port: 0, ingest-udp-port: -1, subscriber-port: 0}
                 sensors:
-                  - {id: a, width: 64, height: 48, frame-rate-hz: 100, latency-budget-ms: 5000, readout-every-events: 400}
+                  - {id: a, width: 64, height: 48, frame-rate-hz: 100, latency-budget-ms: 5000, readout-every-events: 100}
                 """, "test");
         List<EventBatch> packets = SceneEvents.packets(64, 48, 2_000_000, 1_000, 4);
         try (AfterglowNode node = AfterglowNode.start(config);
@@ -66,7 +66,7 @@ class ReadoutScheduleTest {
                 if (t < 1_000_000) {
                     if (t % 10_000 != 0) {
                         offGrid++;
-                        assertTrue(f.getProvenance().getEventsApplied() >= 400, "an extra readout after 400 events");
+                        assertTrue(f.getProvenance().getEventsApplied() >= 100, "an extra readout after 100 applied events");
                     }
                 } else if (t > 1_060_000) {
                     assertEquals(0, t % 50_000, "after the change: 20 Hz grid, no extra readouts: " + t);
