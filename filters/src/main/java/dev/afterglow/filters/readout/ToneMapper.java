@@ -27,6 +27,8 @@ public final class ToneMapper {
     private double lutRange = Double.NaN;
     private double lastLow;
     private double lastHigh;
+    private float gain;
+    private float offset;
 
     public ToneMapper(ToneMap settings) {
         this.settings = settings;
@@ -49,46 +51,24 @@ public final class ToneMapper {
 
     /** Maps {@code log[0..n)} into {@code out[0..n)}. */
     public void apply(float[] log, int n, byte[] out) {
-        double lo;
-        double hi;
         if (settings.mode() == ToneMap.Mode.FIXED) {
-            lo = settings.low();
-            hi = settings.high();
+            fixedRange();
         } else {
             // Copy a regular subsample once; the range and the histogram then read that small buffer.
             int stride = sampleStride(n);
             float[] sample = samples;
             int m = 0;
-            float min = Float.POSITIVE_INFINITY;
-            float max = Float.NEGATIVE_INFINITY;
             for (int i = 0; i < n; i += stride) {
-                float v = log[i];
-                sample[m++] = v;
-                // Plain comparisons skip NaN (Math.min/max would spread it).
-                min = v < min ? v : min;
-                max = v > max ? v : max;
+                sample[m++] = log[i];
             }
-            if (!(max > min)) { // flat image, empty or NaN-only
-                lo = Float.isFinite(min) ? min - 0.5 : -0.5;
-                hi = lo + 1;
-            } else {
-                long total = fillHistogram(sample, m, min, max);
-                lo = percentileValue(total, min, max, settings.low());
-                hi = percentileValue(total, min, max, settings.high());
-                if (!(hi > lo)) {
-                    hi = lo + (max - min) / BINS;
-                }
-            }
+            rangeFromSamples(sample, m);
         }
-        lastLow = lo;
-        lastHigh = hi;
-        buildLut(hi - lo);
-        float flo = (float) lo;
-        byte[] table = lut;
         if (settings.curve() == ToneMap.Curve.GAMMA) {
             // GAMMA rises like u^(1/2.2) at black, too steeply for even steps of u (3 levels off
             // there), so its table is indexed by sqrt(u); below lo the root is NaN: step 0.
-            float inv = (float) (1 / (hi - lo));
+            float flo = (float) lastLow;
+            float inv = (float) (1 / (lastHigh - lastLow));
+            byte[] table = lut;
             for (int i = 0; i < n; i++) {
                 float u = (float) Math.sqrt((log[i] - flo) * inv) * (LUT_SIZE - 1);
                 int step = u >= LUT_SIZE - 1 ? LUT_SIZE - 1 : (u > 0 ? (int) (u + 0.5f) : 0);
@@ -96,14 +76,76 @@ public final class ToneMapper {
             }
             return;
         }
-        // LOG curve: grey level linear in log intensity, computed directly (no table) so the JIT
-        // can vectorise the loop. NaN survives min/max and converts to 0.
-        float gain = (float) (255.0 / (hi - lo));
-        float offset = (float) (0.5 - lo * 255.0 / (hi - lo));
+        float g = gain;
+        float o = offset;
         for (int i = 0; i < n; i++) {
-            float g = Math.min(255.5f, Math.max(0f, log[i] * gain + offset));
-            out[i] = (byte) (int) g;
+            out[i] = grey(log[i], g, o);
         }
+    }
+
+    /** Sets the range of a FIXED tone map (also done by {@link #apply}). */
+    public void fixedRange() {
+        setRange(settings.low(), settings.high());
+    }
+
+    /**
+     * Sets the range from sample values (PERCENTILE mode: their percentiles; FIXED: the fixed
+     * range). {@link #apply} calls this with a regular subsample of the image.
+     */
+    public void rangeFromSamples(float[] values, int m) {
+        if (settings.mode() == ToneMap.Mode.FIXED) {
+            fixedRange();
+            return;
+        }
+        float min = Float.POSITIVE_INFINITY;
+        float max = Float.NEGATIVE_INFINITY;
+        for (int i = 0; i < m; i++) {
+            float v = values[i];
+            // Plain comparisons skip NaN (Math.min/max would spread it).
+            min = v < min ? v : min;
+            max = v > max ? v : max;
+        }
+        double lo;
+        double hi;
+        if (!(max > min)) { // flat image, empty or NaN-only
+            lo = Float.isFinite(min) ? min - 0.5 : -0.5;
+            hi = lo + 1;
+        } else {
+            long total = fillHistogram(values, m, min, max);
+            lo = percentileValue(total, min, max, settings.low());
+            hi = percentileValue(total, min, max, settings.high());
+            if (!(hi > lo)) {
+                hi = lo + (max - min) / BINS;
+            }
+        }
+        setRange(lo, hi);
+    }
+
+    private void setRange(double lo, double hi) {
+        lastLow = lo;
+        lastHigh = hi;
+        gain = (float) (255.0 / (hi - lo));
+        offset = (float) (0.5 - lo * 255.0 / (hi - lo));
+        buildLut(hi - lo);
+    }
+
+    /** LOG curve: grey = clamp(floor(v·gain + offset), 0, 255) with the current range. */
+    public float gain() {
+        return gain;
+    }
+
+    /** See {@link #gain()}. */
+    public float offset() {
+        return offset;
+    }
+
+    /**
+     * The LOG curve's grey level of {@code v}: {@code floor(v·gain + offset)} clipped to 0..255
+     * (offset includes the +0.5 that rounds); NaN gives 0 (Java's float-to-int conversion).
+     */
+    public static byte grey(float v, float gain, float offset) {
+        int g = (int) (v * gain + offset);
+        return (byte) (g < 0 ? 0 : (g > 255 ? 255 : g));
     }
 
     /**
@@ -111,7 +153,7 @@ public final class ToneMapper {
      * exact (to one bin) on small images, a regular subsample on large ones, where the sampling
      * error of a percentile is far below one grey level.
      */
-    static int sampleStride(int n) {
+    public static int sampleStride(int n) {
         return Math.max(1, (n + MIN_SAMPLES - 1) / MIN_SAMPLES);
     }
 
