@@ -4,7 +4,7 @@
 Needs python3-protobuf and python3-numpy, and Python code generated from the schema:
 
     protoc --python_out=GEN -Iproto/src/main/proto proto/src/main/proto/afterglow/v1/afterglow.proto
-    PYTHONPATH=GEN python3 examples/python/afterglow_subscribe.py --sensor conveyor-cam --count 20
+    PYTHONPATH=GEN python3 examples/python/afterglow_subscribe.py --sensor parcel-line --count 20
 
 Each frame arrives as a varint-length-delimited Envelope; pixels become a numpy array of shape
 (height, width): uint8 for gray8 frames, float32 natural-log intensity for log-f32 frames.
@@ -70,7 +70,7 @@ def main():
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("--host", default="127.0.0.1")
     ap.add_argument("--port", type=int, default=7303)
-    ap.add_argument("--sensor", default="conveyor-cam")
+    ap.add_argument("--sensor", default="parcel-line")
     ap.add_argument("--rate", type=float, default=10.0, help="frames per second wanted (0: all)")
     ap.add_argument("--format", choices=["gray8", "log-f32"], default="gray8")
     ap.add_argument("--count", type=int, default=10, help="frames to receive (0: forever)")

@@ -23,7 +23,7 @@ import picocli.CommandLine.Option;
 public final class DemoCommand implements Callable<Integer> {
 
     @Option(names = "--chain", paramLabel = "CHAIN", description = "Chain description (see 'afterglow stages'). Default: ${DEFAULT-VALUE}")
-    String chain = "refractory(period=1ms) | background-activity(window=10ms) | high-pass(cutoff=3rad/s, contrast=0.2)";
+    String chain = "refractory(period=100us) | background-activity(window=5ms) | high-pass(cutoff=3rad/s, contrast=0.2)";
 
     @Option(names = "--scene", description = "parcel-line, dock-door or orchard-pan. Default: ${DEFAULT-VALUE}")
     String scene = "parcel-line";

@@ -26,7 +26,7 @@ import java.util.Set;
  *   subscriber-port: 7303
  * accept-unlisted-sensors: true
  * sensor-defaults:
- *   chain: "refractory | background-activity(window=10ms) | high-pass(cutoff=3rad/s)"
+ *   chain: "refractory(period=100us) | background-activity(window=5ms) | high-pass(cutoff=3rad/s)"
  *   frame-rate-hz: 50
  * sensors:
  *   - id: dock-cam

@@ -12,7 +12,7 @@ public final class SensorConfig {
     /** Sensor height in pixels; 0 for the defaults entry. */
     public int height;
     /** Chain description. */
-    public String chain = "refractory(period=1ms) | background-activity(window=10ms) | high-pass(cutoff=3rad/s, contrast=0.2)";
+    public String chain = "refractory(period=100us) | background-activity(window=5ms) | high-pass(cutoff=3rad/s, contrast=0.2)";
     /** Frames per second read out, in sensor time. */
     public double frameRateHz = 50;
     /** Extra frame after this many applied events since the last one; 0: off. */
