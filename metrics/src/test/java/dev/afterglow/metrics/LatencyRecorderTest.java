@@ -1,0 +1,83 @@
+package dev.afterglow.metrics;
+
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import io.micrometer.core.instrument.Tags;
+import io.micrometer.prometheusmetrics.PrometheusConfig;
+import io.micrometer.prometheusmetrics.PrometheusMeterRegistry;
+import java.util.Arrays;
+import java.util.SplittableRandom;
+import org.junit.jupiter.api.Test;
+
+class LatencyRecorderTest {
+
+    /** Nearest-rank percentile of sorted values: the smallest value with at least q·n values at or below it. */
+    private static long exactQuantile(long[] sorted, double q) {
+        int rank = (int) Math.max(1, Math.ceil(q * sorted.length));
+        return sorted[rank - 1];
+    }
+
+    @Test
+    void shouldExportPercentilesOfUniformLatenciesWithinStatedPrecision() {
+        PrometheusMeterRegistry registry = new PrometheusMeterRegistry(PrometheusConfig.DEFAULT);
+        LatencyRecorder recorder = new LatencyRecorder().bind(registry, "afterglow.test.latency", "test", Tags.of("sensor", "a"));
+        SplittableRandom random = new SplittableRandom(42);
+        long[] values = new long[200_000];
+        for (int i = 0; i < values.length; i++) {
+            values[i] = random.nextLong(1_000, 20_000_000); // 1 us .. 20 ms, uniform
+            recorder.recordNanos(values[i]);
+        }
+        long[] sorted = values.clone();
+        Arrays.sort(sorted);
+        for (double q : LatencyRecorder.QUANTILES) {
+            double exported = registry.get("afterglow.test.latency").tag("quantile", Double.toString(q)).gauge().value();
+            long exact = exactQuantile(sorted, q);
+            // HdrHistogram documentation: a histogram with 3 significant digits keeps values to a
+            // resolution of 1 part in 1000 of the value (equivalent-value ranges are at most 0.1% wide).
+            double tolerance = exact * Math.pow(10, -LatencyRecorder.SIGNIFICANT_DIGITS) + 1;
+            assertEquals(exact / 1e9, exported, tolerance / 1e9, "quantile " + q);
+        }
+        double max = registry.get("afterglow.test.latency.max").gauge().value();
+        long exactMax = sorted[sorted.length - 1];
+        assertEquals(exactMax / 1e9, max, (exactMax * 1e-3 + 1) / 1e9);
+        assertEquals(values.length, registry.get("afterglow.test.latency.samples").functionCounter().count());
+
+        String text = registry.scrape();
+        assertTrue(text.contains("afterglow_test_latency_seconds{quantile=\"0.99\",sensor=\"a\"}"), text);
+        assertTrue(text.contains("afterglow_test_latency_max_seconds{sensor=\"a\"}"), text);
+        assertTrue(text.contains("afterglow_test_latency_samples_total{sensor=\"a\"} 200000"), text);
+    }
+
+    @Test
+    void shouldMatchExactPercentilesOfFixedSetAcrossSeveralHarvests() {
+        LatencyRecorder recorder = new LatencyRecorder();
+        // 1..1000 us, each once, recorded in three parts with harvests in between.
+        long[] values = new long[1000];
+        for (int i = 0; i < values.length; i++) {
+            values[i] = (i + 1) * 1_000L;
+            recorder.recordNanos(values[i]);
+            if (i == 300 || i == 700) {
+                recorder.harvest();
+            }
+        }
+        for (double q : new double[] {0.5, 0.9, 0.99, 0.999}) {
+            long exact = exactQuantile(values, q);
+            long got = recorder.valueAtQuantileNanos(q);
+            // Source: HdrHistogram documentation (3 significant digits: within 0.1% of the value).
+            assertEquals(exact, got, exact * 1e-3 + 1, "quantile " + q);
+        }
+        assertEquals(1000, recorder.count());
+        assertEquals(1_000_000, recorder.maxNanos(), 1_000_000 * 1e-3);
+    }
+
+    @Test
+    void shouldClampOutOfRangeValuesInsteadOfFailing() {
+        LatencyRecorder recorder = new LatencyRecorder();
+        recorder.recordNanos(-5);
+        recorder.recordNanos(LatencyRecorder.HIGHEST_NANOS * 10);
+        assertEquals(2, recorder.count());
+        assertEquals(1, recorder.valueAtQuantileNanos(0.5));
+        assertTrue(recorder.maxNanos() >= LatencyRecorder.HIGHEST_NANOS * (1 - 1e-3));
+    }
+}
