@@ -1,6 +1,7 @@
 package dev.afterglow.node;
 
 import dev.afterglow.node.config.NodeConfig;
+import dev.afterglow.node.http.HttpEndpoints;
 import dev.afterglow.node.ingest.TcpIngestHandler;
 import dev.afterglow.node.ingest.UdpIngestHandler;
 import dev.afterglow.node.pipeline.NodeClock;
@@ -9,6 +10,7 @@ import dev.afterglow.node.publish.FramePublisher;
 import dev.afterglow.node.publish.SubscriberHandler;
 import dev.afterglow.node.stats.Counters;
 import dev.afterglow.node.stats.NodeCounter;
+import dev.afterglow.node.stats.NodeMeters;
 import dev.afterglow.node.wire.BoundedVarintFrameDecoder;
 import io.netty.bootstrap.Bootstrap;
 import io.netty.bootstrap.ServerBootstrap;
@@ -24,6 +26,10 @@ import io.netty.channel.socket.DatagramChannel;
 import io.netty.channel.socket.SocketChannel;
 import io.netty.channel.socket.nio.NioDatagramChannel;
 import io.netty.channel.socket.nio.NioServerSocketChannel;
+import io.netty.handler.codec.http.HttpObjectAggregator;
+import io.netty.handler.codec.http.HttpServerCodec;
+import io.micrometer.prometheusmetrics.PrometheusConfig;
+import io.micrometer.prometheusmetrics.PrometheusMeterRegistry;
 import java.net.InetSocketAddress;
 import java.util.concurrent.TimeUnit;
 
@@ -45,6 +51,10 @@ public final class AfterglowNode implements AutoCloseable {
     private Channel tcpIngest;
     private Channel udpIngest;
     private Channel subscriberServer;
+    private Channel httpServer;
+    private final PrometheusMeterRegistry meterRegistry = new PrometheusMeterRegistry(PrometheusConfig.DEFAULT);
+    private final NodeMeters meters;
+    private volatile boolean ready;
 
     private AfterglowNode(NodeConfig config, NodeClock clock) {
         this.config = config;
@@ -53,6 +63,7 @@ public final class AfterglowNode implements AutoCloseable {
         this.pipelineGroup = new DefaultEventLoopGroup(config.limits.pipelineThreads);
         this.publisher = new FramePublisher(clock);
         this.registry = new SensorRegistry(config, pipelineGroup, publisher, clock, nodeCounters);
+        this.meters = new NodeMeters(meterRegistry, registry, publisher, nodeCounters);
     }
 
     /** Starts a node with the system clock. */
@@ -120,6 +131,20 @@ public final class AfterglowNode implements AutoCloseable {
                     })
                     .bind(new InetSocketAddress(address, config.listen.subscriberPort)).sync().channel();
         }
+        if (config.listen.httpPort >= 0) {
+            HttpEndpoints endpoints = new HttpEndpoints(meterRegistry, meters, registry, publisher, () -> ready);
+            httpServer = new ServerBootstrap()
+                    .group(ioGroup)
+                    .channel(NioServerSocketChannel.class)
+                    .childHandler(new ChannelInitializer<SocketChannel>() {
+                        @Override
+                        protected void initChannel(SocketChannel ch) {
+                            ch.pipeline().addLast(new HttpServerCodec(), new HttpObjectAggregator(64 << 10), endpoints);
+                        }
+                    })
+                    .bind(new InetSocketAddress(address, config.listen.httpPort)).sync().channel();
+        }
+        ready = true;
     }
 
     /** Bound TCP ingest port, or -1. */
@@ -135,6 +160,22 @@ public final class AfterglowNode implements AutoCloseable {
     /** Bound subscriber port, or -1. */
     public int subscriberPort() {
         return port(subscriberServer);
+    }
+
+    /** Bound HTTP port, or -1. */
+    public int httpPort() {
+        return port(httpServer);
+    }
+
+    /** True once every configured listener is bound. */
+    public boolean ready() {
+        return ready;
+    }
+
+    /** The node's meters in Prometheus form (what {@code GET /metrics} serves). */
+    public PrometheusMeterRegistry meterRegistry() {
+        meters.refresh();
+        return meterRegistry;
     }
 
     private static int port(Channel c) {
@@ -164,6 +205,8 @@ public final class AfterglowNode implements AutoCloseable {
     @Override
     public void close() {
         // Stop intake first, then let pipelines drain their queues, then close subscriber connections.
+        ready = false;
+        closeQuietly(httpServer);
         closeQuietly(tcpIngest);
         closeQuietly(udpIngest);
         registry.close();

@@ -68,6 +68,7 @@ public final class DemoCommand implements Callable<Integer> {
                   ingest-tcp-port: 0
                   ingest-udp-port: -1
                   subscriber-port: 0
+                  http-port: 0
                 sensors:
                   - id: %s
                     width: %d

@@ -10,11 +10,14 @@ public final class ListenConfig {
     public int ingestUdpPort = 7302;
     /** Subscribers connect here over TCP. */
     public int subscriberPort = 7303;
+    /** HTTP endpoints (/metrics, /health, /ready, /status) on the same address. */
+    public int httpPort = 7380;
 
     void validate() {
         Checks.present("listen.address", address);
         Checks.range("listen.ingest-tcp-port", ingestTcpPort, -1, 65535);
         Checks.range("listen.ingest-udp-port", ingestUdpPort, -1, 65535);
         Checks.range("listen.subscriber-port", subscriberPort, -1, 65535);
+        Checks.range("listen.http-port", httpPort, -1, 65535);
     }
 }

@@ -24,6 +24,7 @@ import java.util.Set;
  *   ingest-tcp-port: 7301
  *   ingest-udp-port: 7302
  *   subscriber-port: 7303
+ *   http-port: 7380
  * accept-unlisted-sensors: true
  * sensor-defaults:
  *   chain: "refractory(period=100us) | background-activity(window=5ms) | high-pass(cutoff=3rad/s)"

@@ -8,6 +8,7 @@ import dev.afterglow.filters.codec.DecodeResult;
 import dev.afterglow.filters.codec.EventPacketCodec;
 import dev.afterglow.filters.readout.ToneMapper;
 import dev.afterglow.filters.recon.ComplementaryFilter;
+import dev.afterglow.metrics.LatencyRecorder;
 import dev.afterglow.node.config.SensorConfig;
 import dev.afterglow.node.config.ToneMapText;
 import dev.afterglow.node.publish.FrameData;
@@ -67,6 +68,10 @@ public final class SensorPipeline {
     private final UdpSequence udpSequence = new UdpSequence();
     private final float[] log;
     private final byte[] gray;
+    private final LatencyRecorder sensorToPublish = new LatencyRecorder();
+    private final LatencyRecorder readoutDuration = new LatencyRecorder();
+    private final LatencyRecorder arrivalToApplied = new LatencyRecorder();
+    private volatile long lagNanos;
 
     private volatile SensorConfig config;
     private volatile Chain chain;
@@ -285,6 +290,10 @@ public final class SensorPipeline {
         dropLate();
         newestArrivalUs = arrivalUs;
         applyWithFrames(batch);
+        // Once per packet: host arrival of the packet to its events applied (frames read out included).
+        long lag = clock.monotonicNanos() - arrivalUs * 1000;
+        arrivalToApplied.recordNanos(lag);
+        lagNanos = lag;
     }
 
     private boolean acceptUdpSequence(long seq) {
@@ -478,6 +487,8 @@ public final class SensorPipeline {
         FrameData frame = new FrameData(id, seq, gridIndex, frameTimeUs, windowStartUs, width, height, rateHz,
                 log, this::gray8, p.build(), clockMapper.toHostUs(frameTimeUs), newestArrivalUs, readoutNanos);
         publisher.publish(frame, counters);
+        readoutDuration.recordNanos(readoutNanos);
+        sensorToPublish.recordNanos(clock.monotonicNanos() - frame.frameHostUs() * 1000);
         lastFrameUs = frameTimeUs;
         windowStartUs = frameTimeUs;
         eventsSinceFrame = 0;
@@ -491,6 +502,26 @@ public final class SensorPipeline {
             grayReadyFor = (int) sequence;
         }
         return gray;
+    }
+
+    /** Sensor time of a frame (mapped to host time) to the frame handed to subscribers; recorded per frame. */
+    public LatencyRecorder sensorToPublishLatency() {
+        return sensorToPublish;
+    }
+
+    /** Time spent reading the reconstruction out; recorded per frame. */
+    public LatencyRecorder readoutLatency() {
+        return readoutDuration;
+    }
+
+    /** Host arrival of a packet to its events applied by the chain; recorded per packet. */
+    public LatencyRecorder arrivalToAppliedLatency() {
+        return arrivalToApplied;
+    }
+
+    /** Processing lag: arrival-to-applied time of the last packet processed, in nanoseconds. Any thread. */
+    public long lagNanos() {
+        return lagNanos;
     }
 
     /** Current frame rate. */

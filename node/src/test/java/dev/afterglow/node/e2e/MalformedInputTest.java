@@ -40,7 +40,7 @@ class MalformedInputTest {
     @Test
     void shouldCountBadInputAndKeepServingOthers() throws Exception {
         NodeConfig config = NodeConfig.parse("""
-                listen: {ingest-tcp-port: 0, ingest-udp-port: 0, subscriber-port: 0}
+                listen: {ingest-tcp-port: 0, ingest-udp-port: 0, subscriber-port: 0, http-port: 0}
                 limits: {max-message-bytes: 65536}
                 accept-unlisted-sensors: false
                 sensors:

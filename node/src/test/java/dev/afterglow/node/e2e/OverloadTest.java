@@ -36,7 +36,7 @@ class OverloadTest {
     @Test
     void shouldShedBurstAndRecoverLatencyWithinBudget() throws Exception {
         NodeConfig config = NodeConfig.parse("""
-                listen: {ingest-tcp-port: 0, ingest-udp-port: -1, subscriber-port: 0}
+                listen: {ingest-tcp-port: 0, ingest-udp-port: -1, subscriber-port: 0, http-port: 0}
                 limits: {max-message-bytes: 8388608, max-pending-packets: 64}
                 sensors:
                   - {id: cam, width: %d, height: %d, frame-rate-hz: 50, latency-budget-ms: %s,

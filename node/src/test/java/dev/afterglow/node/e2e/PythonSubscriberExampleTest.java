@@ -42,7 +42,7 @@ class PythonSubscriberExampleTest {
         int w = 64;
         int h = 48;
         NodeConfig config = NodeConfig.parse("""
-                listen: {ingest-tcp-port: 0, ingest-udp-port: -1, subscriber-port: 0}
+                listen: {ingest-tcp-port: 0, ingest-udp-port: -1, subscriber-port: 0, http-port: 0}
                 sensors:
                   - {id: py-cam, width: %d, height: %d, frame-rate-hz: 50, latency-budget-ms: 2000}
                 """.formatted(w, h), "test");

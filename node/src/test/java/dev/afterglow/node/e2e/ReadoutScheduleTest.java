@@ -24,7 +24,7 @@ class ReadoutScheduleTest {
     @Test
     void shouldReadOutEveryNEventsAndFollowARateChange() throws Exception {
         NodeConfig config = NodeConfig.parse("""
-                listen: {ingest-tcp-port: 0, ingest-udp-port: -1, subscriber-port: 0}
+                listen: {ingest-tcp-port: 0, ingest-udp-port: -1, subscriber-port: 0, http-port: 0}
                 sensors:
                   - {id: a, width: 64, height: 48, frame-rate-hz: 100, latency-budget-ms: 5000, readout-every-events: 100}
                 """, "test");

@@ -29,7 +29,7 @@ class ServeLifecycleTest {
     void shouldPrintConfigServeAndStopOnSigterm(@TempDir Path dir) throws Exception {
         Path config = dir.resolve("node.yaml");
         Files.writeString(config, """
-                listen: {ingest-tcp-port: 0, ingest-udp-port: 0, subscriber-port: 0}
+                listen: {ingest-tcp-port: 0, ingest-udp-port: 0, subscriber-port: 0, http-port: 0}
                 sensors: [{id: dock, width: 32, height: 24, frame-rate-hz: 50}]
                 """);
         Process p = new ProcessBuilder(Path.of(System.getProperty("java.home"), "bin", "java").toString(),

@@ -30,7 +30,7 @@ class SlowSubscriberTest {
         int w = 320;
         int h = 240;
         NodeConfig config = NodeConfig.parse("""
-                listen: {ingest-tcp-port: 0, ingest-udp-port: -1, subscriber-port: 0}
+                listen: {ingest-tcp-port: 0, ingest-udp-port: -1, subscriber-port: 0, http-port: 0}
                 limits: {subscriber-high-water-bytes: 2097152}
                 sensors:
                   - {id: cam, width: %d, height: %d, frame-rate-hz: 100, latency-budget-ms: 10000,

@@ -38,6 +38,7 @@ class StreamingEndToEndTest {
                   ingest-tcp-port: 0
                   ingest-udp-port: 0
                   subscriber-port: 0
+                  http-port: 0
                 sensors:
                   - id: %s
                     width: %d

@@ -32,7 +32,7 @@ class SubscriptionOptionsTest {
     @Test
     void shouldDecimateCropDownscaleAndResumeAfterReconnect() throws Exception {
         NodeConfig config = NodeConfig.parse("""
-                listen: {ingest-tcp-port: 0, ingest-udp-port: -1, subscriber-port: 0}
+                listen: {ingest-tcp-port: 0, ingest-udp-port: -1, subscriber-port: 0, http-port: 0}
                 sensors:
                   - {id: a, width: 64, height: 48, frame-rate-hz: 100, latency-budget-ms: 5000}
                   - {id: b, width: 32, height: 32, frame-rate-hz: 40, latency-budget-ms: 5000}
@@ -111,7 +111,7 @@ class SubscriptionOptionsTest {
     @Test
     void shouldRefuseBadSubscriptions() throws Exception {
         NodeConfig config = NodeConfig.parse("""
-                listen: {ingest-tcp-port: 0, ingest-udp-port: -1, subscriber-port: 0}
+                listen: {ingest-tcp-port: 0, ingest-udp-port: -1, subscriber-port: 0, http-port: 0}
                 sensors: [{id: a, width: 64, height: 48}]
                 """, "test");
         try (AfterglowNode node = AfterglowNode.start(config)) {

@@ -1,0 +1,2 @@
+/** The node's HTTP endpoints: Prometheus metrics, health, readiness and a JSON status. */
+package dev.afterglow.node.http;

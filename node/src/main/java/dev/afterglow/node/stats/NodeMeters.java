@@ -1,0 +1,102 @@
+package dev.afterglow.node.stats;
+
+import dev.afterglow.filters.chain.Chain;
+import dev.afterglow.metrics.ChainMeters;
+import dev.afterglow.node.pipeline.SensorPipeline;
+import dev.afterglow.node.pipeline.SensorRegistry;
+import dev.afterglow.node.publish.FramePublisher;
+import io.micrometer.core.instrument.FunctionCounter;
+import io.micrometer.core.instrument.Gauge;
+import io.micrometer.core.instrument.MeterRegistry;
+import io.micrometer.core.instrument.Tags;
+import java.util.HashMap;
+import java.util.Map;
+
+/**
+ * Binds the node's state to a Micrometer registry: every {@link NodeCounter} as a function counter
+ * (tag {@code sensor} for sensor-scoped ones), each chain's stage counters through
+ * {@link ChainMeters}, gauges for subscribers, pending packets and processing lag, and each
+ * sensor's latency recorders. Nothing is recorded here: meters read the lock-free counters when
+ * scraped. Sensors appear at run time and chains are replaced, so call {@link #refresh()} before
+ * each scrape.
+ */
+public final class NodeMeters {
+    /** Latency of a frame's sensor time (mapped to host time) to publishing. */
+    public static final String SENSOR_TO_PUBLISH = "afterglow.latency.sensor.to.publish";
+    /** Duration of a readout. */
+    public static final String READOUT = "afterglow.latency.readout";
+    /** Host arrival of a packet to its events applied. */
+    public static final String ARRIVAL_TO_APPLIED = "afterglow.latency.arrival.to.applied";
+
+    private final MeterRegistry registry;
+    private final SensorRegistry sensors;
+    private final Map<String, Bound> bound = new HashMap<>();
+
+    private static final class Bound {
+        Chain chain;
+        ChainMeters chainMeters;
+    }
+
+    public NodeMeters(MeterRegistry registry, SensorRegistry sensors, FramePublisher publisher, Counters nodeCounters) {
+        this.registry = registry;
+        this.sensors = sensors;
+        for (NodeCounter c : NodeCounter.values()) {
+            if (c.scope() == NodeCounter.Scope.NODE) {
+                FunctionCounter.builder(c.meterName(), nodeCounters, v -> v.get(c))
+                        .description(c.help())
+                        .register(registry);
+            }
+        }
+        Gauge.builder("afterglow.subscribers.connected", publisher, FramePublisher::count)
+                .description("Subscriber connections with an accepted subscription")
+                .register(registry);
+        refresh();
+    }
+
+    /** Registers meters for sensors that appeared and rebinds stage counters of replaced chains. */
+    public synchronized void refresh() {
+        for (SensorPipeline p : sensors.all()) {
+            Bound b = bound.get(p.id());
+            if (b == null) {
+                b = new Bound();
+                bind(p);
+                bound.put(p.id(), b);
+            }
+            Chain chain = p.chain();
+            if (b.chain != chain) {
+                if (b.chainMeters != null) {
+                    b.chainMeters.close();
+                }
+                b.chain = chain;
+                b.chainMeters = ChainMeters.bind(registry, p.id(), chain);
+            }
+        }
+    }
+
+    private void bind(SensorPipeline p) {
+        Tags tags = Tags.of("sensor", p.id());
+        Counters counters = p.counters();
+        for (NodeCounter c : NodeCounter.values()) {
+            if (c.scope() == NodeCounter.Scope.SENSOR) {
+                FunctionCounter.builder(c.meterName(), counters, v -> v.get(c))
+                        .description(c.help())
+                        .tags(tags)
+                        .register(registry);
+            }
+        }
+        Gauge.builder("afterglow.pending.packets", p, SensorPipeline::pendingPackets)
+                .description("Packets waiting for the sensor's pipeline thread")
+                .tags(tags)
+                .register(registry);
+        Gauge.builder("afterglow.processing.lag", p, s -> s.lagNanos() / 1e9)
+                .description("Arrival-to-applied time of the last packet processed")
+                .baseUnit("seconds")
+                .tags(tags)
+                .register(registry);
+        p.sensorToPublishLatency().bind(registry, SENSOR_TO_PUBLISH,
+                "Sensor time of a frame (mapped to host time) to the frame handed to subscribers", tags);
+        p.readoutLatency().bind(registry, READOUT, "Time spent reading the reconstruction out for a frame", tags);
+        p.arrivalToAppliedLatency().bind(registry, ARRIVAL_TO_APPLIED,
+                "Host arrival of an event packet to its events applied by the chain", tags);
+    }
+}
