@@ -21,8 +21,11 @@ public final class ServeCommand implements Callable<Integer> {
         NodeConfig c = config == null ? NodeConfig.defaults() : NodeConfig.load(config);
         System.out.println("afterglow: effective configuration\n" + c.toYaml());
         AfterglowNode node = AfterglowNode.start(c);
-        System.out.printf("afterglow: listening on %s  sensors tcp:%d udp:%d  subscribers tcp:%d  http:%d%n",
-                c.listen.address, node.ingestTcpPort(), node.ingestUdpPort(), node.subscriberPort(), node.httpPort());
+        System.out.printf("afterglow: listening on %s  sensors tcp:%d udp:%d  subscribers tcp:%d%n",
+                c.listen.address, node.ingestTcpPort(), node.ingestUdpPort(), node.subscriberPort());
+        if (node.httpPort() >= 0) {
+            System.out.printf("afterglow: http on %s:%d (/metrics /health /ready /status)%n", c.listen.address, node.httpPort());
+        }
         CountDownLatch stopped = new CountDownLatch(1);
         Runtime.getRuntime().addShutdownHook(new Thread(() -> {
             System.out.println("afterglow: stopping (intake closed, pipelines drained, subscribers closed)");
