@@ -86,7 +86,6 @@ public final class SensorPipeline {
     private long windowStartUs;
     private long sequence;
     private long newestArrivalUs;
-    private long newestEventUs = Long.MIN_VALUE;
     private long eventsSinceFrame;
     private long droppedSinceFrame;
     private long[] stageInAtFrame;
@@ -330,7 +329,6 @@ public final class SensorPipeline {
         SensorConfig c = config;
         scheduleStarted = false;
         lastFrameUs = Long.MIN_VALUE;
-        newestEventUs = Long.MIN_VALUE;
         clockMapper.reset();
         udpSequence.reset();
         eventsSinceFrame = 0;
@@ -409,7 +407,6 @@ public final class SensorPipeline {
         }
         long newest = b.timeBaseUs + b.maxT;
         chain.process(b);
-        newestEventUs = Math.max(newestEventUs, newest);
         eventsSinceFrame += b.size;
         int everyN = config.readoutEveryEvents;
         if (everyN > 0 && eventsSinceFrame >= everyN) {
@@ -527,10 +524,5 @@ public final class SensorPipeline {
     /** Current frame rate. */
     public double frameRateHz() {
         return rateHz;
-    }
-
-    /** Sensor time of the last published frame, or Long.MIN_VALUE. Pipeline thread. */
-    long lastFrameUs() {
-        return lastFrameUs;
     }
 }
