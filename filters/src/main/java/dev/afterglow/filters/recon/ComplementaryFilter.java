@@ -115,8 +115,8 @@ public final class ComplementaryFilter implements Reconstruction {
     }
 
     private void moveOrigin(long newOriginUs) {
-        double f0 = clock.renormaliseFactor(0, newOriginUs);
-        double f1 = clock.renormaliseFactor(1, newOriginUs);
+        double f0 = clock.scaleAt(0, newOriginUs);
+        double f1 = clock.scaleAt(1, newOriginUs);
         double[] s = deviation;
         byte[] k = cls;
         for (int i = 0; i < s.length; i++) {
@@ -150,8 +150,8 @@ public final class ComplementaryFilter implements Reconstruction {
         if (!clock.started()) {
             clock.start(timeUs);
         }
-        double f0 = clock.renormaliseFactor(0, timeUs);
-        double f1 = clock.renormaliseFactor(1, timeUs);
+        double f0 = clock.scaleAt(0, timeUs);
+        double f1 = clock.scaleAt(1, timeUs);
         double[] s = deviation;
         float[] lf = frameLogIntensity;
         byte[] k = cls;

@@ -9,7 +9,7 @@ package dev.afterglow.filters.recon;
  * {@code s}: the growth factor comes from two small tables
  * ({@code exp(a·d) = coarse[d >>> 10] · fine[d & 1023]} for d in microseconds). Readout multiplies
  * every pixel by one factor per cut-off. Before the growth factor gets large the owner moves the
- * origin forward ({@link #needsRenormalise(long)}, {@link #renormaliseFactor(int, long)}) and scales
+ * origin forward ({@link #scaleAt(int, long)}, {@link #moveOrigin(long)}) and scales
  * every pixel once: a pass over the state every {@link #spanUs()} at most.
  *
  * <p>Several cut-offs (classes) can share one origin, so per-pixel cut-offs chosen from a small
@@ -87,37 +87,17 @@ final class DecayClock {
         return coarse[d >>> FINE_BITS] * fine[d & (FINE - 1)];
     }
 
-    /** True if an event at {@code timeUs} is too far from the origin for the tables. */
-    boolean needsRenormalise(long timeUs) {
-        long d = timeUs - originUs;
-        return d >= spanUs;
-    }
-
-    /** Factor that turns scaled state of class {@code cls} into its value at {@code timeUs}. */
+    /**
+     * Factor that turns scaled state of class {@code cls} into its value at {@code timeUs}; also
+     * the factor to rescale the state by when the origin moves to {@code timeUs} (then call
+     * {@link #moveOrigin}).
+     */
     double scaleAt(int cls, long timeUs) {
         return Math.exp(-alphaPerUs[cls] * (timeUs - originUs));
-    }
-
-    /**
-     * Factor to multiply class {@code cls}'s scaled state by when the origin moves to
-     * {@code newOriginUs}; equals {@link #scaleAt}. Call {@link #moveOrigin} after scaling.
-     */
-    double renormaliseFactor(int cls, long newOriginUs) {
-        return scaleAt(cls, newOriginUs);
     }
 
     /** Moves the origin; the owner has already rescaled its state. */
     void moveOrigin(long newOriginUs) {
         originUs = newOriginUs;
-    }
-
-    /** Number of classes. */
-    int classes() {
-        return alphaPerUs.length;
-    }
-
-    /** Cut-off of class {@code cls} in rad/s. */
-    double alphaRadPerS(int cls) {
-        return alphaPerUs[cls] * 1e6;
     }
 }

@@ -86,7 +86,7 @@ public final class HighPassFilter implements Reconstruction {
     }
 
     private void renormalise(long newOriginUs) {
-        double f = clock.renormaliseFactor(0, newOriginUs);
+        double f = clock.scaleAt(0, newOriginUs);
         StateScaling.scale(state, f);
         clock.moveOrigin(newOriginUs);
     }

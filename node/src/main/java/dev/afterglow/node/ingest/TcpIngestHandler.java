@@ -59,7 +59,7 @@ public final class TcpIngestHandler extends SimpleChannelInboundHandler<ByteBuf>
                 if (sensor == null) {
                     protocolError(ctx, "sensor frame before hello");
                 } else {
-                    sensor.offerFrame(envelope.getSensorFrame(), arrival);
+                    sensor.offerFrame(envelope.getSensorFrame());
                 }
             }
             default -> protocolError(ctx, "unexpected " + envelope.getBodyCase() + " on an ingest connection");

@@ -50,7 +50,7 @@ public final class UdpIngestHandler extends SimpleChannelInboundHandler<Datagram
             case SENSOR_FRAME -> {
                 SensorPipeline p = known(envelope.getSensorFrame().getSensorId());
                 if (p != null) {
-                    p.offerFrame(envelope.getSensorFrame(), arrival);
+                    p.offerFrame(envelope.getSensorFrame());
                 }
             }
             default -> nodeCounters.increment(NodeCounter.PROTOCOL_ERRORS);

@@ -241,7 +241,7 @@ public final class SensorPipeline {
     }
 
     /** Hands one of the sensor's own frames to the pipeline thread. Any thread. */
-    public void offerFrame(SensorFrame frame, long arrivalNanos) {
+    public void offerFrame(SensorFrame frame) {
         counters.increment(NodeCounter.SENSOR_FRAMES);
         loop.execute(() -> onSensorFrame(frame));
     }

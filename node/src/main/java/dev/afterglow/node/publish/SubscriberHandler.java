@@ -57,41 +57,35 @@ public final class SubscriberHandler extends SimpleChannelInboundHandler<ByteBuf
             reject(ctx, "limit", "subscriber limit " + maxSubscribers + " reached");
             return;
         }
-        String problem = check(s, sensor);
+        // Resolve the defaults once (whole sensor, no downscale, 8-bit), then check what was resolved.
+        Region r = s.getRegion();
+        boolean whole = r.getWidth() == 0 && r.getHeight() == 0;
+        int x = whole ? 0 : r.getX();
+        int y = whole ? 0 : r.getY();
+        int w = whole ? sensor.width() : r.getWidth();
+        int h = whole ? sensor.height() : r.getHeight();
+        int downscale = s.getDownscale() == 0 ? 1 : s.getDownscale();
+        PixelFormat format = s.getFormat() == PixelFormat.PIXEL_FORMAT_UNSPECIFIED ? PixelFormat.PIXEL_FORMAT_GRAY8 : s.getFormat();
+        String problem = check(s, format, x, y, w, h, downscale, sensor);
         if (problem != null) {
             reject(ctx, "bad-subscribe", problem);
             return;
         }
-        Region r = s.getRegion();
-        boolean whole = r.getWidth() == 0 && r.getHeight() == 0;
-        int downscale = s.getDownscale() == 0 ? 1 : s.getDownscale();
-        PixelFormat format = s.getFormat() == PixelFormat.PIXEL_FORMAT_UNSPECIFIED ? PixelFormat.PIXEL_FORMAT_GRAY8 : s.getFormat();
-        subscription = new Subscription(ctx.channel(), sensor.id(), format,
-                whole ? 0 : r.getX(), whole ? 0 : r.getY(),
-                whole ? sensor.width() : r.getWidth(), whole ? sensor.height() : r.getHeight(),
-                downscale, s.getRateHz());
+        subscription = new Subscription(ctx.channel(), sensor.id(), format, x, y, w, h, downscale, s.getRateHz());
         publisher.add(subscription);
     }
 
-    /** Returns what is wrong with the request, or null. */
-    static String check(Subscribe s, SensorPipeline sensor) {
+    /** Returns what is wrong with the request (its defaults already resolved), or null. */
+    private static String check(Subscribe s, PixelFormat format, int x, int y, int w, int h, int ds, SensorPipeline sensor) {
         if (!(s.getRateHz() >= 0 && s.getRateHz() <= 1000)) {
             return "rate_hz=" + s.getRateHz() + " outside [0, 1000]";
         }
-        if (s.getDownscale() > 16) {
-            return "downscale=" + s.getDownscale() + " > 16";
+        if (ds > 16) {
+            return "downscale=" + ds + " > 16";
         }
-        if (s.getFormat() != PixelFormat.PIXEL_FORMAT_UNSPECIFIED && s.getFormat() != PixelFormat.PIXEL_FORMAT_GRAY8
-                && s.getFormat() != PixelFormat.PIXEL_FORMAT_LOG_F32) {
+        if (format != PixelFormat.PIXEL_FORMAT_GRAY8 && format != PixelFormat.PIXEL_FORMAT_LOG_F32) {
             return "format " + s.getFormatValue() + " unknown";
         }
-        Region r = s.getRegion();
-        boolean whole = r.getWidth() == 0 && r.getHeight() == 0;
-        int w = whole ? sensor.width() : r.getWidth();
-        int h = whole ? sensor.height() : r.getHeight();
-        int x = whole ? 0 : r.getX();
-        int y = whole ? 0 : r.getY();
-        int ds = s.getDownscale() == 0 ? 1 : s.getDownscale();
         if (w < 1 || h < 1 || (long) x + w > sensor.width() || (long) y + h > sensor.height()) {
             return "region " + x + "," + y + " " + w + "x" + h + " outside the sensor's " + sensor.width() + "x" + sensor.height();
         }
