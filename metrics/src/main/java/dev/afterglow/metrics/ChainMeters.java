@@ -6,6 +6,7 @@ import dev.afterglow.filters.chain.Chain;
 import io.micrometer.core.instrument.FunctionCounter;
 import io.micrometer.core.instrument.Meter;
 import io.micrometer.core.instrument.MeterRegistry;
+import io.micrometer.core.instrument.Tags;
 import java.util.ArrayList;
 import java.util.List;
 
@@ -17,6 +18,9 @@ import java.util.List;
  * {@code sensor}, {@code stage} (the method's name) and {@code position} (0-based place in the
  * chain, so a chain may use one method twice).
  *
+ * <p>With {@link StageTimers}, each stage's processing time per packet is exported too, as
+ * {@code afterglow_stage_time_seconds{quantile}} (see {@link LatencyRecorder}) with the same tags.
+ *
  * <p>Close the returned handle to remove the meters when the sensor's chain is replaced.
  */
 public final class ChainMeters implements AutoCloseable {
@@ -27,14 +31,24 @@ public final class ChainMeters implements AutoCloseable {
 
     private final MeterRegistry registry;
     private final List<Meter> meters;
+    private final StageTimers timers;
 
-    private ChainMeters(MeterRegistry registry, List<Meter> meters) {
+    private ChainMeters(MeterRegistry registry, List<Meter> meters, StageTimers timers) {
         this.registry = registry;
         this.meters = meters;
+        this.timers = timers;
     }
 
     /** Registers counters for every stage of {@code chain} under the tag {@code sensor=sensorId}. */
     public static ChainMeters bind(MeterRegistry registry, String sensorId, Chain chain) {
+        return bind(registry, sensorId, chain, null);
+    }
+
+    /** As {@link #bind(MeterRegistry, String, Chain)}, plus the stage times of {@code timers} (may be null). */
+    public static ChainMeters bind(MeterRegistry registry, String sensorId, Chain chain, StageTimers timers) {
+        if (timers != null && timers.chain() != chain) {
+            throw new IllegalArgumentException("stage timers belong to another chain");
+        }
         List<Meter> meters = new ArrayList<>();
         List<EventStage> stages = chain.stages();
         for (int i = 0; i < stages.size(); i++) {
@@ -51,8 +65,12 @@ public final class ChainMeters implements AutoCloseable {
                     .baseUnit("events")
                     .tags("sensor", sensorId, "stage", stage.name(), "position", position)
                     .register(registry));
+            if (timers != null) {
+                timers.stage(i).bind(registry, StageTimers.NAME, "Time a chain stage spent on one packet",
+                        Tags.of("sensor", sensorId, "stage", stage.name(), "position", position));
+            }
         }
-        return new ChainMeters(registry, meters);
+        return new ChainMeters(registry, meters, timers);
     }
 
     /** Removes the meters from the registry. */
@@ -60,6 +78,11 @@ public final class ChainMeters implements AutoCloseable {
     public void close() {
         for (Meter m : meters) {
             registry.remove(m);
+        }
+        if (timers != null) {
+            for (int i = 0; i < timers.chain().stages().size(); i++) {
+                timers.stage(i).close();
+            }
         }
     }
 }

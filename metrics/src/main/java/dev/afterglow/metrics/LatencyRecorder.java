@@ -8,12 +8,17 @@ import io.micrometer.core.instrument.Tags;
 import java.util.ArrayList;
 import java.util.List;
 import org.HdrHistogram.Histogram;
+import org.HdrHistogram.IntervalHistogramProvider;
+import org.HdrHistogram.Recorder;
 import org.HdrHistogram.SingleWriterRecorder;
+import org.HdrHistogram.ValueRecorder;
 
 /**
  * A latency histogram for one hot thread: {@link #recordNanos} is called by a single writer
  * without locks or allocation (an HdrHistogram {@link SingleWriterRecorder} with a fixed range);
- * any other thread harvests interval histograms when the registry is read.
+ * any other thread harvests interval histograms when the registry is read. Where values come from
+ * several threads (e.g. socket-write completions on I/O threads), {@link #forConcurrentWriters()}
+ * uses HdrHistogram's wait-free multi-writer {@link Recorder} instead.
  *
  * <p>Values are tracked from 1 ns to {@link #HIGHEST_NANOS} with {@link #SIGNIFICANT_DIGITS}
  * significant decimal digits; larger values are recorded as the highest. Exported percentiles
@@ -32,7 +37,8 @@ public final class LatencyRecorder implements AutoCloseable {
     /** Exported quantiles. */
     public static final double[] QUANTILES = {0.5, 0.9, 0.99, 0.999};
 
-    private final SingleWriterRecorder recorder = new SingleWriterRecorder(1, HIGHEST_NANOS, SIGNIFICANT_DIGITS);
+    private final ValueRecorder recorder;
+    private final IntervalHistogramProvider<Histogram> intervals;
     private final long slotNanos;
     private final Histogram[] slots;
     private final Histogram window = new Histogram(1, HIGHEST_NANOS, SIGNIFICANT_DIGITS);
@@ -45,6 +51,29 @@ public final class LatencyRecorder implements AutoCloseable {
 
     /** A recorder whose percentiles cover the last {@code windowSlots × slotNanos}. */
     public LatencyRecorder(int windowSlots, long slotNanos) {
+        this(windowSlots, slotNanos, false);
+    }
+
+    /** A recorder over the last minute (six 10 s slots). */
+    public LatencyRecorder() {
+        this(6, 10_000_000_000L);
+    }
+
+    /** A recorder over the last minute that any number of threads may write at once. */
+    public static LatencyRecorder forConcurrentWriters() {
+        return new LatencyRecorder(6, 10_000_000_000L, true);
+    }
+
+    private LatencyRecorder(int windowSlots, long slotNanos, boolean concurrentWriters) {
+        if (concurrentWriters) {
+            Recorder r = new Recorder(1, HIGHEST_NANOS, SIGNIFICANT_DIGITS);
+            this.recorder = r;
+            this.intervals = r;
+        } else {
+            SingleWriterRecorder r = new SingleWriterRecorder(1, HIGHEST_NANOS, SIGNIFICANT_DIGITS);
+            this.recorder = r;
+            this.intervals = r;
+        }
         if (windowSlots < 1 || slotNanos < 1) {
             throw new IllegalArgumentException("windowSlots and slotNanos must be positive");
         }
@@ -55,19 +84,14 @@ public final class LatencyRecorder implements AutoCloseable {
         }
     }
 
-    /** A recorder over the last minute (six 10 s slots). */
-    public LatencyRecorder() {
-        this(6, 10_000_000_000L);
-    }
-
-    /** Records one latency; only ever from the one writer thread. Negative values count as 0 ns. */
+    /** Records one latency; only ever from the one writer thread (unless made for concurrent writers). Negative values count as 0 ns. */
     public void recordNanos(long nanos) {
         recorder.recordValue(Math.max(1, Math.min(HIGHEST_NANOS, nanos)));
     }
 
     /** Moves what was recorded since the last harvest into the window. Any thread but the writer. */
     public synchronized void harvest() {
-        interval = recorder.getIntervalHistogram(interval);
+        interval = intervals.getIntervalHistogram(interval);
         long now = System.nanoTime();
         if (now - slotStartNanos >= slotNanos) {
             long steps = Math.min(slots.length, (now - slotStartNanos) / slotNanos);

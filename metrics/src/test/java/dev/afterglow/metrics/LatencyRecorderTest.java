@@ -80,4 +80,28 @@ class LatencyRecorderTest {
         assertEquals(1, recorder.valueAtQuantileNanos(0.5));
         assertTrue(recorder.maxNanos() >= LatencyRecorder.HIGHEST_NANOS * (1 - 1e-3));
     }
+
+    @Test
+    void concurrentRecorderShouldKeepEveryValueFromSeveralWriters() throws InterruptedException {
+        LatencyRecorder recorder = LatencyRecorder.forConcurrentWriters();
+        int threads = 4;
+        int perThread = 50_000;
+        Thread[] writers = new Thread[threads];
+        for (int t = 0; t < threads; t++) {
+            long value = 1_000_000L * (t + 1); // writer t records (t+1) ms
+            writers[t] = new Thread(() -> {
+                for (int i = 0; i < perThread; i++) {
+                    recorder.recordNanos(value);
+                }
+            });
+            writers[t].start();
+        }
+        for (Thread w : writers) {
+            w.join();
+        }
+        // Every value counted once; quartiles fall on each writer's value within HdrHistogram's 3-digit precision.
+        assertEquals((long) threads * perThread, recorder.count());
+        assertEquals(1_000_000, recorder.valueAtQuantileNanos(0.25), 1_000);
+        assertEquals(4_000_000, recorder.maxNanos(), 4_000);
+    }
 }

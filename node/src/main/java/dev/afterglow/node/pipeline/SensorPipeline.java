@@ -9,6 +9,7 @@ import dev.afterglow.filters.codec.EventPacketCodec;
 import dev.afterglow.filters.readout.ToneMapper;
 import dev.afterglow.filters.recon.ComplementaryFilter;
 import dev.afterglow.metrics.LatencyRecorder;
+import dev.afterglow.metrics.StageTimers;
 import dev.afterglow.node.config.SensorConfig;
 import dev.afterglow.node.config.ToneMapText;
 import dev.afterglow.node.publish.FrameData;
@@ -33,13 +34,16 @@ import java.util.concurrent.atomic.AtomicInteger;
  * {@code maxPendingPackets} wait, beyond that new packets are shed (counted). On the pipeline
  * thread a packet whose newest event is older than the latency budget (sensor time mapped to host
  * time by {@link ClockMapper}) is shed whole, so the backlog drains at the cost of those events
- * and the delay never grows without bound.
+ * and the delay never grows without bound. Every event offered is counted once by transport and
+ * then lands in exactly one of: reached the chain, shed (queue or budget), or rejected with its
+ * packet (malformed, UDP duplicate or late).
  *
  * <p>Frames: at sensor times {@code T_k = floor(k · 10^6 / rate)} us. Events before T_k are applied,
  * the reconstruction is read out at T_k and published, then later events are applied. Frame times
  * already older than the budget when due are skipped (counted) except the newest. While the sensor
  * is connected but quiet, a timer publishes the frames whose times have passed (mapped to host
  * time) by more than the budget. Optionally a frame is also read out after every N applied events.
+ * While nobody subscribes to the sensor, frame times pass without a readout (counted as unread).
  *
  * <p>Time rules: events older than the last published frame are dropped as late (counted). A
  * packet more than {@link #RESTART_THRESHOLD_US} older than the last frame means the sensor's
@@ -71,10 +75,12 @@ public final class SensorPipeline {
     private final LatencyRecorder sensorToPublish = new LatencyRecorder();
     private final LatencyRecorder readoutDuration = new LatencyRecorder();
     private final LatencyRecorder arrivalToApplied = new LatencyRecorder();
+    private final LatencyRecorder readoutToSocket = LatencyRecorder.forConcurrentWriters();
     private volatile long lagNanos;
 
     private volatile SensorConfig config;
     private volatile Chain chain;
+    private volatile StageTimers stageTimers;
     private ToneMapper toneMapper;
     private long budgetUs;
     private double rateHz;
@@ -122,6 +128,7 @@ public final class SensorPipeline {
     private void applyConfig(SensorConfig c, Chain built) {
         this.config = c;
         this.chain = built;
+        this.stageTimers = new StageTimers(built);
         this.toneMapper = new ToneMapper(ToneMapText.parse("tone-map", c.toneMap));
         this.budgetUs = Math.round(c.latencyBudgetMs * 1000);
         if (scheduleStarted && c.frameRateHz != rateHz) {
@@ -130,13 +137,9 @@ public final class SensorPipeline {
             this.nextFrameUs = frameTime(frameIndex, c.frameRateHz);
         }
         this.rateHz = c.frameRateHz;
-        List<EventStage> stages = built.stages();
-        this.stageInAtFrame = new long[stages.size()];
-        this.stageOutAtFrame = new long[stages.size()];
-        for (int i = 0; i < stages.size(); i++) {
-            stageInAtFrame[i] = stages.get(i).counters().eventsIn();
-            stageOutAtFrame[i] = stages.get(i).counters().eventsOut();
-        }
+        this.stageInAtFrame = new long[built.stages().size()];
+        this.stageOutAtFrame = new long[built.stages().size()];
+        markStageCounts();
     }
 
     private static long frameTime(long k, double rateHz) {
@@ -174,6 +177,11 @@ public final class SensorPipeline {
     /** Current chain (for reading counters; its state belongs to the pipeline thread). */
     public Chain chain() {
         return chain;
+    }
+
+    /** Per-packet stage times of the current chain (its {@link StageTimers#chain()} is the chain they time). */
+    public StageTimers stageTimers() {
+        return stageTimers;
     }
 
     /** Packets waiting for the pipeline thread. */
@@ -221,7 +229,9 @@ public final class SensorPipeline {
      * thread). Any thread.
      */
     public boolean offerPacket(EventPacket packet, long arrivalNanos, Transport transport) {
-        counters.increment(transport == Transport.TCP ? NodeCounter.PACKETS_TCP : NodeCounter.PACKETS_UDP);
+        boolean tcp = transport == Transport.TCP;
+        counters.increment(tcp ? NodeCounter.PACKETS_TCP : NodeCounter.PACKETS_UDP);
+        counters.add(tcp ? NodeCounter.EVENTS_TCP : NodeCounter.EVENTS_UDP, packet.getEventCount());
         long bytes = packet.getEvents().size();
         int waitingPackets = pending.incrementAndGet();
         long waitingBytes = pendingBytes.addAndGet(bytes);
@@ -247,13 +257,15 @@ public final class SensorPipeline {
     }
 
     private void onPacket(EventPacket packet, long arrivalUs, Transport transport) {
+        int count = packet.getEventCount();
         if (transport == Transport.UDP && !acceptUdpSequence(packet.getSequence())) {
+            counters.add(NodeCounter.EVENTS_REJECTED, count);
             return;
         }
-        int count = packet.getEventCount();
         java.nio.ByteBuffer bytes = packet.getEvents().asReadOnlyByteBuffer();
         if ((long) count * EventPacketCodec.BYTES_PER_EVENT != bytes.remaining() || count > batch.capacity()) {
             counters.increment(NodeCounter.PACKETS_MALFORMED);
+            counters.add(NodeCounter.EVENTS_REJECTED, count);
             droppedSinceFrame += count;
             return;
         }
@@ -406,7 +418,7 @@ public final class SensorPipeline {
             return;
         }
         long newest = b.timeBaseUs + b.maxT;
-        chain.process(b);
+        chain.process(b, stageTimers);
         eventsSinceFrame += b.size;
         int everyN = config.readoutEveryEvents;
         if (everyN > 0 && eventsSinceFrame >= everyN) {
@@ -460,9 +472,16 @@ public final class SensorPipeline {
     }
 
     private void readoutAndPublish(long frameTimeUs, long gridIndex) {
-        long r0 = System.nanoTime();
+        if (!publisher.hasSubscribers(id)) {
+            // Nobody to show it to: skip the readout (the reconstruction's state does not depend on it).
+            counters.increment(NodeCounter.FRAMES_UNREAD);
+            markStageCounts();
+            endWindow(frameTimeUs);
+            return;
+        }
+        long r0 = clock.monotonicNanos();
         chain.reconstruction().readLog(frameTimeUs, log);
-        long readoutNanos = System.nanoTime() - r0;
+        long readoutNanos = clock.monotonicNanos() - r0;
         grayReadyFor = -1;
         long seq = ++sequence;
         Provenance.Builder p = Provenance.newBuilder()
@@ -482,10 +501,23 @@ public final class SensorPipeline {
             stageOutAtFrame[i] = out;
         }
         FrameData frame = new FrameData(id, seq, gridIndex, frameTimeUs, windowStartUs, width, height, rateHz,
-                log, this::gray8, p.build(), clockMapper.toHostUs(frameTimeUs), newestArrivalUs, readoutNanos);
-        publisher.publish(frame, counters);
+                log, this::gray8, p.build(), clockMapper.toHostUs(frameTimeUs), newestArrivalUs, r0, readoutNanos);
+        publisher.publish(frame, counters, readoutToSocket);
         readoutDuration.recordNanos(readoutNanos);
         sensorToPublish.recordNanos(clock.monotonicNanos() - frame.frameHostUs() * 1000);
+        endWindow(frameTimeUs);
+    }
+
+    /** Starts the provenance's per-frame stage counts afresh from the chain's counters. */
+    private void markStageCounts() {
+        List<EventStage> stages = chain.stages();
+        for (int i = 0; i < stages.size(); i++) {
+            stageInAtFrame[i] = stages.get(i).counters().eventsIn();
+            stageOutAtFrame[i] = stages.get(i).counters().eventsOut();
+        }
+    }
+
+    private void endWindow(long frameTimeUs) {
         lastFrameUs = frameTimeUs;
         windowStartUs = frameTimeUs;
         eventsSinceFrame = 0;
@@ -509,6 +541,11 @@ public final class SensorPipeline {
     /** Time spent reading the reconstruction out; recorded per frame. */
     public LatencyRecorder readoutLatency() {
         return readoutDuration;
+    }
+
+    /** Start of a frame's readout to its bytes written to a subscriber's socket; recorded per subscriber write. */
+    public LatencyRecorder readoutToSocketLatency() {
+        return readoutToSocket;
     }
 
     /** Host arrival of a packet to its events applied by the chain; recorded per packet. */

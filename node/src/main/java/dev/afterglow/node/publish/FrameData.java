@@ -19,6 +19,7 @@ import java.util.function.Supplier;
  * @param provenance provenance without the publish-time fields
  * @param frameHostUs host monotonic time (us) the frame's sensor time maps to
  * @param newestArrivalUs host monotonic arrival (us) of the newest packet applied in the window; 0 if none
+ * @param readoutStartNanos host monotonic time (ns) the readout started
  * @param readoutNanos time spent reading out
  */
 public record FrameData(
@@ -35,5 +36,6 @@ public record FrameData(
         dev.afterglow.proto.v1.Provenance provenance,
         long frameHostUs,
         long newestArrivalUs,
+        long readoutStartNanos,
         long readoutNanos) {
 }

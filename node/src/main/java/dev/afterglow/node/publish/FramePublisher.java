@@ -10,7 +10,9 @@ import dev.afterglow.proto.v1.IntensityFrame;
 import dev.afterglow.proto.v1.PixelFormat;
 import dev.afterglow.proto.v1.Provenance;
 import dev.afterglow.proto.v1.Region;
+import dev.afterglow.metrics.LatencyRecorder;
 import io.netty.buffer.ByteBuf;
+import io.netty.channel.ChannelPromise;
 import java.util.HashMap;
 import java.util.List;
 import java.util.Map;
@@ -53,6 +55,12 @@ public final class FramePublisher {
         return bySensor.getOrDefault(sensorId, List.of());
     }
 
+    /** True if the sensor has at least one subscription (frames are only read out then). */
+    public boolean hasSubscribers(String sensorId) {
+        List<Subscription> list = bySensor.get(sensorId);
+        return list != null && !list.isEmpty();
+    }
+
     /** Number of subscriptions over all sensors. */
     public int count() {
         int n = 0;
@@ -62,14 +70,19 @@ public final class FramePublisher {
         return n;
     }
 
-    /** Publishes one frame to the sensor's subscribers; returns the number of subscribers written to. */
-    public int publish(FrameData frame, Counters sensorCounters) {
+    /**
+     * Publishes one frame to the sensor's subscribers; returns the number of subscribers written to.
+     * When a write reaches the socket, the time since the frame's readout started goes to
+     * {@code writeLatency} (on the subscriber's I/O thread).
+     */
+    public int publish(FrameData frame, Counters sensorCounters, LatencyRecorder writeLatency) {
         sensorCounters.increment(NodeCounter.FRAMES_PUBLISHED);
         List<Subscription> subs = bySensor.get(frame.sensorId());
         if (subs == null || subs.isEmpty()) {
             return 0;
         }
         Map<Subscription.RenderKey, ByteBuf> encoded = new HashMap<>(4);
+        long readoutStart = frame.readoutStartNanos();
         int written = 0;
         try {
             for (Subscription s : subs) {
@@ -85,7 +98,13 @@ public final class FramePublisher {
                     continue;
                 }
                 ByteBuf bytes = encoded.computeIfAbsent(s.key, k -> encode(frame, k));
-                s.channel.writeAndFlush(bytes.retainedDuplicate(), s.channel.voidPromise());
+                ChannelPromise sent = s.channel.newPromise();
+                sent.addListener(f -> {
+                    if (f.isSuccess()) {
+                        writeLatency.recordNanos(clock.monotonicNanos() - readoutStart);
+                    }
+                });
+                s.channel.writeAndFlush(bytes.retainedDuplicate(), sent);
                 s.countDelivered();
                 written++;
             }

@@ -8,6 +8,9 @@ package dev.afterglow.node.stats;
 public enum NodeCounter {
     PACKETS_TCP(Scope.SENSOR, "afterglow.ingest.tcp.packets", "Event packets received over TCP"),
     PACKETS_UDP(Scope.SENSOR, "afterglow.ingest.udp.packets", "Event packets received over UDP"),
+    EVENTS_TCP(Scope.SENSOR, "afterglow.ingest.tcp.events", "Events in packets received over TCP (before any check or shedding)"),
+    EVENTS_UDP(Scope.SENSOR, "afterglow.ingest.udp.events", "Events in packets received over UDP (before any check or shedding)"),
+    EVENTS_REJECTED(Scope.SENSOR, "afterglow.ingest.rejected.events", "Events in packets rejected whole: malformed, or UDP duplicate or too late"),
     EVENTS_RECEIVED(Scope.SENSOR, "afterglow.ingest.events", "Events in packets that reached the chain (not shed, not malformed)"),
     SENSOR_FRAMES(Scope.SENSOR, "afterglow.ingest.sensor.frames", "The sensor's own frames received"),
     EVENTS_OUTSIDE_SENSOR(Scope.SENSOR, "afterglow.ingest.events.outside", "Events dropped: pixel outside the sensor"),
@@ -24,6 +27,7 @@ public enum NodeCounter {
     CLOCK_RESTARTS(Scope.SENSOR, "afterglow.ingest.clock.restarts", "Sensor clock jumped back by more than the restart threshold; the sensor's state was reset"),
     FRAMES_SKIPPED(Scope.SENSOR, "afterglow.frames.skipped", "Frame times skipped because they were already older than the latency budget when due"),
     FRAMES_PUBLISHED(Scope.SENSOR, "afterglow.frames.published", "Frames read out and offered to subscribers"),
+    FRAMES_UNREAD(Scope.SENSOR, "afterglow.frames.unread", "Frame times that passed with nobody subscribed, so nothing was read out"),
     FRAMES_MISSED(Scope.SENSOR, "afterglow.frames.missed", "Frames a subscriber missed because it could not keep up"),
     MESSAGES_MALFORMED(Scope.NODE, "afterglow.ingest.malformed.messages", "Messages or datagrams that are not valid envelopes"),
     MESSAGES_OVERSIZED(Scope.NODE, "afterglow.ingest.oversized.messages", "TCP messages whose length prefix exceeds the limit (connection closed)"),

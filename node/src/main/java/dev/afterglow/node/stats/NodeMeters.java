@@ -1,7 +1,7 @@
 package dev.afterglow.node.stats;
 
-import dev.afterglow.filters.chain.Chain;
 import dev.afterglow.metrics.ChainMeters;
+import dev.afterglow.metrics.StageTimers;
 import dev.afterglow.node.pipeline.SensorPipeline;
 import dev.afterglow.node.pipeline.SensorRegistry;
 import dev.afterglow.node.publish.FramePublisher;
@@ -15,7 +15,7 @@ import java.util.Map;
 /**
  * Binds the node's state to a Micrometer registry: every {@link NodeCounter} as a function counter
  * (tag {@code sensor} for sensor-scoped ones), each chain's stage counters through
- * {@link ChainMeters}, gauges for subscribers, pending packets and processing lag, and each
+ * {@link ChainMeters} (with their per-packet stage times), gauges for subscribers, pending packets and processing lag, and each
  * sensor's latency recorders. Nothing is recorded here: meters read the lock-free counters when
  * scraped. Sensors appear at run time and chains are replaced, so call {@link #refresh()} before
  * each scrape.
@@ -25,6 +25,8 @@ public final class NodeMeters {
     public static final String SENSOR_TO_PUBLISH = "afterglow.latency.sensor.to.publish";
     /** Duration of a readout. */
     public static final String READOUT = "afterglow.latency.readout";
+    /** Start of a frame's readout to its bytes written to a subscriber's socket. */
+    public static final String READOUT_TO_SOCKET = "afterglow.latency.readout.to.socket";
     /** Host arrival of a packet to its events applied. */
     public static final String ARRIVAL_TO_APPLIED = "afterglow.latency.arrival.to.applied";
 
@@ -33,7 +35,7 @@ public final class NodeMeters {
     private final Map<String, Bound> bound = new HashMap<>();
 
     private static final class Bound {
-        Chain chain;
+        StageTimers timers;
         ChainMeters chainMeters;
     }
 
@@ -62,13 +64,13 @@ public final class NodeMeters {
                 bind(p);
                 bound.put(p.id(), b);
             }
-            Chain chain = p.chain();
-            if (b.chain != chain) {
+            StageTimers timers = p.stageTimers();
+            if (b.timers != timers) {
                 if (b.chainMeters != null) {
                     b.chainMeters.close();
                 }
-                b.chain = chain;
-                b.chainMeters = ChainMeters.bind(registry, p.id(), chain);
+                b.timers = timers;
+                b.chainMeters = ChainMeters.bind(registry, p.id(), timers.chain(), timers);
             }
         }
     }
@@ -96,6 +98,8 @@ public final class NodeMeters {
         p.sensorToPublishLatency().bind(registry, SENSOR_TO_PUBLISH,
                 "Sensor time of a frame (mapped to host time) to the frame handed to subscribers", tags);
         p.readoutLatency().bind(registry, READOUT, "Time spent reading the reconstruction out for a frame", tags);
+        p.readoutToSocketLatency().bind(registry, READOUT_TO_SOCKET,
+                "Start of a frame's readout to its bytes written to a subscriber's socket", tags);
         p.arrivalToAppliedLatency().bind(registry, ARRIVAL_TO_APPLIED,
                 "Host arrival of an event packet to its events applied by the chain", tags);
     }

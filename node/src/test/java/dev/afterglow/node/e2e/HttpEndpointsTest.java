@@ -107,13 +107,16 @@ class HttpEndpointsTest {
             }
             assertEquals(eventsSent, sample(text, "afterglow_ingest_events_total", "sensor=\"gate\""));
             assertEquals(packets.size(), sample(text, "afterglow_ingest_tcp_packets_total", "sensor=\"gate\""));
+            assertEquals(eventsSent, sample(text, "afterglow_ingest_tcp_events_total", "sensor=\"gate\""));
+            assertEquals(0, sample(text, "afterglow_ingest_udp_events_total", "sensor=\"gate\""));
+            assertEquals(0, sample(text, "afterglow_ingest_rejected_events_total", "sensor=\"gate\""));
             assertEquals(counters.get(NodeCounter.FRAMES_PUBLISHED), sample(text, "afterglow_frames_published_total", "sensor=\"gate\""));
             assertTrue(sample(text, "afterglow_stage_input_events_total", "sensor=\"gate\"", "position=\"0\"") >= eventsSent);
             assertEquals(1, sample(text, "afterglow_subscribers_connected"));
             assertTrue(!Double.isNaN(sample(text, "afterglow_pending_packets", "sensor=\"gate\"")));
             assertTrue(sample(text, "afterglow_processing_lag_seconds", "sensor=\"gate\"") > 0);
             for (String latency : List.of("afterglow_latency_sensor_to_publish", "afterglow_latency_readout",
-                    "afterglow_latency_arrival_to_applied")) {
+                    "afterglow_latency_arrival_to_applied", "afterglow_latency_readout_to_socket")) {
                 for (String q : List.of("0.5", "0.9", "0.99", "0.999")) {
                     double v = sample(text, latency + "_seconds", "sensor=\"gate\"", "quantile=\"" + q + "\"");
                     assertTrue(v > 0 && v < 60, latency + " q" + q + " = " + v);
@@ -121,6 +124,14 @@ class HttpEndpointsTest {
                 assertTrue(sample(text, latency + "_max_seconds", "sensor=\"gate\"") > 0, latency + " max");
                 assertTrue(sample(text, latency + "_samples_total", "sensor=\"gate\"") > 0, latency + " samples");
             }
+            // Stage time per packet, per stage of the chain (the first stage sees every packet).
+            var stages = node.sensors().get("gate").chain().stages();
+            for (int i = 0; i < stages.size(); i++) {
+                String[] labels = {"sensor=\"gate\"", "stage=\"" + stages.get(i).name() + "\"", "position=\"" + i + "\""};
+                assertTrue(sample(text, "afterglow_stage_time_samples_total", labels) > 0, "stage " + i + " samples");
+                assertTrue(sample(text, "afterglow_stage_time_max_seconds", labels) > 0, "stage " + i + " max");
+            }
+            assertEquals(packets.size(), sample(text, "afterglow_stage_time_samples_total", "sensor=\"gate\"", "position=\"0\""));
             // One arrival-to-applied value per packet that reached the chain.
             assertEquals(packets.size(), sample(text, "afterglow_latency_arrival_to_applied_samples_total", "sensor=\"gate\""));
 

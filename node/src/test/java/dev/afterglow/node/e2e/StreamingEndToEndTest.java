@@ -96,58 +96,120 @@ class StreamingEndToEndTest {
                 }
             }
 
-            // Reference: the same chain in this process, events before T applied, read out at T.
-            Chain reference = Chain.build(CHAIN, W, H);
-            float[] expected = new float[W * H];
-            int packetIndex = 0;
-            int eventIndex = 0;
-            EventBatch one = new EventBatch(1 << 16);
             for (int f = 0; f < frames.size(); f++) {
-                IntensityFrame frame = frames.get(f);
-                long t = frame.getFrameTimeUs();
-                assertEquals(10_000L * (f + 1), t, "frame " + f + " time");
-                assertEquals(f + 1, frame.getSequence());
-                one.reset(packets.get(Math.min(packetIndex, packets.size() - 1)).timeBaseUs);
-                while (packetIndex < packets.size()) {
-                    EventBatch p = packets.get(packetIndex);
-                    if (eventIndex == p.size) {
-                        packetIndex++;
-                        eventIndex = 0;
-                        continue;
-                    }
-                    if (p.timeUs(eventIndex) >= t) {
-                        break;
-                    }
-                    if (one.size == one.capacity() || p.timeUs(eventIndex) - one.timeBaseUs >= EventBatch.MAX_OFFSET_US) {
-                        reference.process(one);
-                        one.reset(p.timeUs(eventIndex));
-                    }
-                    one.add(p.x[eventIndex], p.y[eventIndex], p.timeUs(eventIndex), p.p[eventIndex]);
-                    eventIndex++;
-                }
-                reference.process(one);
-                reference.reconstruction().readLog(t, expected);
-                assertEquals(W, frame.getWidth());
-                assertEquals(H, frame.getHeight());
-                ByteBuffer px = frame.getPixels().asReadOnlyByteBuffer().order(ByteOrder.LITTLE_ENDIAN);
-                for (int i = 0; i < W * H; i++) {
-                    float got = px.getFloat(4 * i);
-                    if (Float.floatToRawIntBits(got) != Float.floatToRawIntBits(expected[i])) {
-                        throw new AssertionError("frame " + f + " pixel " + i + ": node " + got + " != in-process " + expected[i]);
-                    }
-                }
-                assertTrue(frame.getProvenance().getEventsApplied() >= 0);
+                assertEquals(10_000L * (f + 1), frames.get(f).getFrameTimeUs(), "frame " + f + " time");
+                assertEquals(f + 1, frames.get(f).getSequence());
             }
+            assertEqualToInProcessChain(packets, frames);
             var counters = node.sensors().get("belt").counters();
             assertEquals(0, counters.get(NodeCounter.PACKETS_SHED_LATENCY));
             assertEquals(0, counters.get(NodeCounter.PACKETS_SHED_QUEUE));
             assertEquals(0, counters.get(NodeCounter.EVENTS_LATE));
+            long sent = packets.stream().mapToLong(b -> b.size).sum();
             if (udp) {
                 assertEquals(0, counters.get(NodeCounter.UDP_LOST));
                 assertTrue(counters.get(NodeCounter.PACKETS_UDP) >= packets.size());
+                // Every event offered lands in exactly one outcome (loopback may duplicate nothing; rejected covers it if it did).
+                assertEquals(counters.get(NodeCounter.EVENTS_UDP), counters.get(NodeCounter.EVENTS_RECEIVED)
+                        + counters.get(NodeCounter.EVENTS_REJECTED));
+                assertEquals(sent, counters.get(NodeCounter.EVENTS_RECEIVED));
             } else {
                 assertEquals(packets.size(), counters.get(NodeCounter.PACKETS_TCP));
+                assertEquals(sent, counters.get(NodeCounter.EVENTS_TCP));
+                assertEquals(sent, counters.get(NodeCounter.EVENTS_RECEIVED));
+                assertEquals(0, counters.get(NodeCounter.EVENTS_UDP));
             }
+            assertEquals(0, counters.get(NodeCounter.FRAMES_UNREAD));
+        }
+    }
+
+    @Test
+    void shouldSkipReadoutWhileNobodySubscribesAndStayExactAfterwards() throws Exception {
+        List<EventBatch> packets = SceneEvents.packets(W, H, 600_000, 1_000, 13);
+        long subscribeAtUs = 300_000;
+        try (AfterglowNode node = AfterglowNode.start(config("belt", 100, 5_000));
+                SensorClient sensor = SensorClient.connect("127.0.0.1", node.ingestTcpPort(), "belt", W, H, false)) {
+            var counters = node.sensors().get("belt").counters();
+            SubscriberClient sub = null;
+            try {
+                long start = System.nanoTime();
+                for (EventBatch b : packets) {
+                    if (sub == null && b.timeBaseUs >= subscribeAtUs) {
+                        // Frames up to here passed unread; nobody was listening.
+                        waitFor(() -> counters.get(NodeCounter.FRAMES_UNREAD) >= 25);
+                        sub = SubscriberClient.connect("127.0.0.1", node.subscriberPort(), "belt", 0, PixelFormat.PIXEL_FORMAT_LOG_F32);
+                        sub.setTimeoutMillis(20_000);
+                        waitFor(() -> node.publisher().count() == 1);
+                        start = System.nanoTime() - b.timeBaseUs * 1000;
+                    }
+                    paceRealTime(start, b.timeBaseUs + 1_000);
+                    sensor.sendEvents(b);
+                    sensor.flush();
+                }
+                List<IntensityFrame> frames = new ArrayList<>();
+                for (int i = 0; i < 20; i++) {
+                    frames.add(sub.next());
+                }
+                long unread = counters.get(NodeCounter.FRAMES_UNREAD);
+                assertTrue(unread >= 25 && unread <= 32, "unread " + unread);
+                for (int f = 0; f < frames.size(); f++) {
+                    // The grid continues; published frames are numbered from 1.
+                    assertEquals(10_000L * (unread + f + 1), frames.get(f).getFrameTimeUs(), "frame " + f + " time");
+                    assertEquals(f + 1, frames.get(f).getSequence());
+                }
+                // Bit for bit what a chain that was read out at every frame gives: skipping readouts changes nothing.
+                assertEqualToInProcessChain(packets, frames);
+            } finally {
+                if (sub != null) {
+                    sub.close();
+                }
+            }
+        }
+    }
+
+    /**
+     * Checks each frame's float pixels bit for bit against the same chain run in this process over
+     * the same packets, with the events before the frame's time applied and read out at that time.
+     */
+    private static void assertEqualToInProcessChain(List<EventBatch> packets, List<IntensityFrame> frames) {
+        Chain reference = Chain.build(CHAIN, W, H);
+        float[] expected = new float[W * H];
+        int packetIndex = 0;
+        int eventIndex = 0;
+        EventBatch one = new EventBatch(1 << 16);
+        for (int f = 0; f < frames.size(); f++) {
+            IntensityFrame frame = frames.get(f);
+            long t = frame.getFrameTimeUs();
+            one.reset(packets.get(Math.min(packetIndex, packets.size() - 1)).timeBaseUs);
+            while (packetIndex < packets.size()) {
+                EventBatch p = packets.get(packetIndex);
+                if (eventIndex == p.size) {
+                    packetIndex++;
+                    eventIndex = 0;
+                    continue;
+                }
+                if (p.timeUs(eventIndex) >= t) {
+                    break;
+                }
+                if (one.size == one.capacity() || p.timeUs(eventIndex) - one.timeBaseUs >= EventBatch.MAX_OFFSET_US) {
+                    reference.process(one);
+                    one.reset(p.timeUs(eventIndex));
+                }
+                one.add(p.x[eventIndex], p.y[eventIndex], p.timeUs(eventIndex), p.p[eventIndex]);
+                eventIndex++;
+            }
+            reference.process(one);
+            reference.reconstruction().readLog(t, expected);
+            assertEquals(W, frame.getWidth());
+            assertEquals(H, frame.getHeight());
+            ByteBuffer px = frame.getPixels().asReadOnlyByteBuffer().order(ByteOrder.LITTLE_ENDIAN);
+            for (int i = 0; i < W * H; i++) {
+                float got = px.getFloat(4 * i);
+                if (Float.floatToRawIntBits(got) != Float.floatToRawIntBits(expected[i])) {
+                    throw new AssertionError("frame " + f + " pixel " + i + ": node " + got + " != in-process " + expected[i]);
+                }
+            }
+            assertTrue(frame.getProvenance().getEventsApplied() >= 0);
         }
     }
 
