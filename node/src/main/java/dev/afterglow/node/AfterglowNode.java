@@ -132,7 +132,7 @@ public final class AfterglowNode implements AutoCloseable {
                     .bind(new InetSocketAddress(address, config.listen.subscriberPort)).sync().channel();
         }
         if (config.listen.httpPort >= 0) {
-            HttpEndpoints endpoints = new HttpEndpoints(meterRegistry, meters, registry, publisher, () -> ready);
+            HttpEndpoints endpoints = new HttpEndpoints(meterRegistry, meters, registry, publisher, config.control, () -> ready);
             httpServer = new ServerBootstrap()
                     .group(ioGroup)
                     .channel(NioServerSocketChannel.class)

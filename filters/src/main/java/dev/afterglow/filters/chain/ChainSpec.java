@@ -173,6 +173,25 @@ public final class ChainSpec {
         return new ChainSpec(copy);
     }
 
+    /**
+     * Returns a copy with stage {@code index}'s parameter {@code key} set from text written as in a
+     * description (e.g. {@code "5rad/s"}, {@code "2ms"}); the stage's other values are kept. Validated
+     * like {@link #parse}, so errors name the setting, the value and the limit.
+     */
+    public ChainSpec withText(int index, String key, String valueText) {
+        StageSpec old = stages.get(index);
+        old.requireKey(key);
+        String current = old.toString();
+        Matcher m = Pattern.compile("([(,]\\s*)" + Pattern.quote(key) + "=[^,)]*").matcher(current);
+        if (!m.find()) {
+            throw new IllegalStateException("canonical text " + current + " lacks " + key);
+        }
+        String text = current.substring(0, m.start()) + m.group(1) + key + "=" + valueText.strip() + current.substring(m.end());
+        List<StageSpec> copy = new ArrayList<>(stages);
+        copy.set(index, parseStage(text));
+        return new ChainSpec(copy);
+    }
+
     /** Canonical text of the whole chain. */
     @Override
     public String toString() {

@@ -39,12 +39,17 @@ public final class StageSpec {
 
     /** Returns a copy with {@code key} set to {@code value} (canonical units), validated. */
     public StageSpec with(String key, double value) {
-        if (!values.containsKey(key)) {
-            throw new ChainSpecException(kind.label() + "." + key + ": unknown parameter; expected one of " + values.keySet());
-        }
+        requireKey(key);
         Map<String, Double> copy = new LinkedHashMap<>(values);
         copy.put(key, value);
         return new StageSpec(kind, copy);
+    }
+
+    /** Throws {@link ChainSpecException} naming the stage's parameters if it has no {@code key}. */
+    void requireKey(String key) {
+        if (!values.containsKey(key)) {
+            throw new ChainSpecException(kind.label() + "." + key + ": unknown parameter; expected one of " + values.keySet());
+        }
     }
 
     /** Canonical text, e.g. {@code high-pass(cutoff=5rad/s, contrast=0.2)}; parses back to an equal spec. */

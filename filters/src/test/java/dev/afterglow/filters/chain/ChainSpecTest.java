@@ -308,4 +308,26 @@ class ChainSpecTest {
         assertEquals(s.size, chain.stages().get(0).counters().eventsIn());
         assertEquals(byHand.size(), chain.reconstruction().counters().eventsIn());
     }
+
+    @Test
+    void shouldChangeOneParameterFromTextKeepingTheOthers() {
+        ChainSpec spec = ChainSpec.parse("refractory(period=100us) | high-pass(cutoff=3rad/s, contrast=0.25)");
+        ChainSpec changed = spec.withText(1, "cutoff", "2Hz");
+        // 2 Hz is 2*pi*2 rad/s (angular frequency, common practice).
+        assertEquals(2 * Math.PI * 2, changed.stages().get(1).get("cutoff"), 1e-9);
+        assertEquals(0.25, changed.stages().get(1).get("contrast"));
+        assertEquals(spec.stages().get(0), changed.stages().get(0));
+        assertEquals(2_000, spec.withText(0, "period", "2ms").stages().get(0).get("period"));
+    }
+
+    @Test
+    void shouldRejectABadValueOrUnknownKeyWhenChangingOneParameter() {
+        ChainSpec spec = ChainSpec.parse("refractory(period=100us) | high-pass(cutoff=3rad/s)");
+        ChainSpecException low = assertThrows(ChainSpecException.class, () -> spec.withText(1, "cutoff", "-1rad/s"));
+        assertTrue(low.getMessage().contains("high-pass.cutoff"), low.getMessage());
+        ChainSpecException unknown = assertThrows(ChainSpecException.class, () -> spec.withText(0, "window", "5ms"));
+        assertTrue(unknown.getMessage().contains("refractory.window: unknown parameter"), unknown.getMessage());
+        ChainSpecException unit = assertThrows(ChainSpecException.class, () -> spec.withText(0, "period", "5 parsecs"));
+        assertTrue(unit.getMessage().contains("refractory.period"), unit.getMessage());
+    }
 }

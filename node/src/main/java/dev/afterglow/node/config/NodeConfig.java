@@ -25,6 +25,9 @@ import java.util.Set;
  *   ingest-udp-port: 7302
  *   subscriber-port: 7303
  *   http-port: 7380
+ * control:            # run-time changes over HTTP, off unless enabled
+ *   enabled: false
+ *   token: ""         # if set, requests need "Authorization: Bearer TOKEN"
  * accept-unlisted-sensors: true
  * sensor-defaults:
  *   chain: "refractory(period=100us) | background-activity(window=5ms) | high-pass(cutoff=3rad/s)"
@@ -40,6 +43,8 @@ import java.util.Set;
 public final class NodeConfig {
     public ListenConfig listen = new ListenConfig();
     public LimitsConfig limits = new LimitsConfig();
+    /** Run-time changes over HTTP; off by default. */
+    public ControlConfig control = new ControlConfig();
     /** Whether a sensor not listed under {@code sensors} may connect (it gets {@code sensor-defaults}). */
     public boolean acceptUnlistedSensors = true;
     /** Settings for unlisted sensors (id and geometry come from their hello). */
@@ -88,11 +93,12 @@ public final class NodeConfig {
 
     /** Checks every setting; throws {@link ConfigException} naming the first bad one. */
     public NodeConfig validate() {
-        if (listen == null || limits == null || sensorDefaults == null || sensors == null) {
-            throw new ConfigException("listen, limits, sensor-defaults and sensors must not be null");
+        if (listen == null || limits == null || control == null || sensorDefaults == null || sensors == null) {
+            throw new ConfigException("listen, limits, control, sensor-defaults and sensors must not be null");
         }
         listen.validate();
         limits.validate();
+        control.validate(listen);
         sensorDefaults.validate("sensor-defaults", false);
         Set<String> ids = new HashSet<>();
         for (int i = 0; i < sensors.size(); i++) {

@@ -25,6 +25,11 @@ public final class SensorConfig {
     /** Parsed chain; valid after {@link #validate}. */
     ChainSpec chainSpec;
 
+    /** Checks every setting of a listed sensor; {@code at} prefixes the setting in messages. */
+    public void validate(String at) {
+        validate(at, true);
+    }
+
     void validate(String at, boolean geometryRequired) {
         if (geometryRequired) {
             Checks.present(at + ".id", id);
@@ -48,6 +53,11 @@ public final class SensorConfig {
             chainSpec = ChainSpec.parse(chain);
         }
         return chainSpec;
+    }
+
+    /** A copy of these settings. */
+    public SensorConfig copy() {
+        return forSensor(id, width, height);
     }
 
     /** A copy for sensor {@code newId} of the given geometry (used for unlisted sensors). */

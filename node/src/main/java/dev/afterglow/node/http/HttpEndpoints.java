@@ -3,6 +3,7 @@ package dev.afterglow.node.http;
 import com.fasterxml.jackson.databind.ObjectMapper;
 import com.fasterxml.jackson.databind.node.ArrayNode;
 import com.fasterxml.jackson.databind.node.ObjectNode;
+import dev.afterglow.node.config.ControlConfig;
 import dev.afterglow.node.pipeline.SensorPipeline;
 import dev.afterglow.node.pipeline.SensorRegistry;
 import dev.afterglow.node.publish.FramePublisher;
@@ -33,8 +34,9 @@ import java.util.function.BooleanSupplier;
 /**
  * The node's HTTP endpoints: {@code GET /metrics} (Prometheus text exposition 0.0.4),
  * {@code /health} (200 while the process serves requests), {@code /ready} (200 once every listener
- * is bound, 503 before) and {@code /status} (JSON: sensors and subscribers). Other paths get 404,
- * other methods on these paths 405. Shared by all connections (stateless).
+ * is bound, 503 before), {@code /status} (JSON: sensors and subscribers) and the run-time settings
+ * under {@code /config/sensors} ({@link SensorSettingsEndpoint}). Other paths get 404, other methods
+ * on these paths 405. Shared by all connections (stateless).
  */
 @ChannelHandler.Sharable
 public final class HttpEndpoints extends SimpleChannelInboundHandler<FullHttpRequest> {
@@ -48,9 +50,11 @@ public final class HttpEndpoints extends SimpleChannelInboundHandler<FullHttpReq
     private final FramePublisher publisher;
     private final BooleanSupplier ready;
     private final ObjectMapper json = new ObjectMapper();
+    private final SensorSettingsEndpoint settings;
 
     public HttpEndpoints(PrometheusMeterRegistry prometheus, NodeMeters meters, SensorRegistry sensors,
-            FramePublisher publisher, BooleanSupplier ready) {
+            FramePublisher publisher, ControlConfig control, BooleanSupplier ready) {
+        this.settings = new SensorSettingsEndpoint(control, sensors, json);
         this.prometheus = prometheus;
         this.meters = meters;
         this.sensors = sensors;
@@ -63,6 +67,19 @@ public final class HttpEndpoints extends SimpleChannelInboundHandler<FullHttpReq
         boolean keepAlive = HttpUtil.isKeepAlive(request);
         String path = new QueryStringDecoder(request.uri()).path();
         FullHttpResponse response;
+        if (request.decoderResult().isSuccess()
+                && (path.equals(SensorSettingsEndpoint.PREFIX) || path.startsWith(SensorSettingsEndpoint.PREFIX + "/"))) {
+            // Answered once the sensor's pipeline has applied a change (on this channel's event loop).
+            settings.handle(request, path).whenComplete((reply, error) -> ctx.executor().execute(() -> {
+                FullHttpResponse r = error == null ? body(reply.status(), reply.contentType(), reply.body())
+                        : text(HttpResponseStatus.INTERNAL_SERVER_ERROR, "internal error\n");
+                if (error == null) {
+                    reply.headers().forEach((k, v) -> r.headers().set(k, v));
+                }
+                send(ctx, r, keepAlive);
+            }));
+            return;
+        }
         if (!request.decoderResult().isSuccess()) {
             response = text(HttpResponseStatus.BAD_REQUEST, "bad request\n");
         } else if (!PATHS.contains(path)) {
@@ -86,6 +103,10 @@ public final class HttpEndpoints extends SimpleChannelInboundHandler<FullHttpReq
                 response = headOnly(response);
             }
         }
+        send(ctx, response, keepAlive);
+    }
+
+    private static void send(ChannelHandlerContext ctx, FullHttpResponse response, boolean keepAlive) {
         if (keepAlive) {
             HttpUtil.setKeepAlive(response, true);
             ctx.writeAndFlush(response);

@@ -22,6 +22,7 @@ import dev.afterglow.proto.v1.SensorFrame;
 import dev.afterglow.proto.v1.StageCount;
 import io.netty.channel.EventLoop;
 import java.util.List;
+import java.util.concurrent.CompletableFuture;
 import java.util.concurrent.ScheduledFuture;
 import java.util.concurrent.TimeUnit;
 import java.util.concurrent.atomic.AtomicInteger;
@@ -127,8 +128,13 @@ public final class SensorPipeline {
 
     private void applyConfig(SensorConfig c, Chain built) {
         this.config = c;
-        this.chain = built;
-        this.stageTimers = new StageTimers(built);
+        if (built != chain) {
+            this.chain = built;
+            this.stageTimers = new StageTimers(built);
+            this.stageInAtFrame = new long[built.stages().size()];
+            this.stageOutAtFrame = new long[built.stages().size()];
+            markStageCounts();
+        }
         this.toneMapper = new ToneMapper(ToneMapText.parse("tone-map", c.toneMap));
         this.budgetUs = Math.round(c.latencyBudgetMs * 1000);
         if (scheduleStarted && c.frameRateHz != rateHz) {
@@ -137,9 +143,6 @@ public final class SensorPipeline {
             this.nextFrameUs = frameTime(frameIndex, c.frameRateHz);
         }
         this.rateHz = c.frameRateHz;
-        this.stageInAtFrame = new long[built.stages().size()];
-        this.stageOutAtFrame = new long[built.stages().size()];
-        markStageCounts();
     }
 
     private static long frameTime(long k, double rateHz) {
@@ -190,12 +193,18 @@ public final class SensorPipeline {
     }
 
     /**
-     * Replaces chain and rate settings at run time (from any thread); the chain keeps no state
-     * across a change. Takes effect before the next packet.
+     * Replaces the settings at run time (from any thread). A different chain is built afresh (its
+     * image starts again from zero); the same chain keeps its state. Takes effect before the next
+     * packet or frame; the returned future completes once it has.
      */
-    public void reconfigure(SensorConfig next) {
-        Chain built = Chain.build(next.chainSpec(), width, height);
-        loop.execute(() -> applyConfig(next, built));
+    public CompletableFuture<Void> reconfigure(SensorConfig next) {
+        Chain fresh = Chain.build(next.chainSpec(), width, height); // built here, off the pipeline thread
+        CompletableFuture<Void> applied = new CompletableFuture<>();
+        loop.execute(() -> {
+            applyConfig(next, next.chainSpec().equals(chain.spec()) ? chain : fresh);
+            applied.complete(null);
+        });
+        return applied;
     }
 
     /** Marks the sensor connected (idle frames are published while connected) or not. Any thread. */

@@ -100,7 +100,7 @@ class StreamingEndToEndTest {
                 assertEquals(10_000L * (f + 1), frames.get(f).getFrameTimeUs(), "frame " + f + " time");
                 assertEquals(f + 1, frames.get(f).getSequence());
             }
-            assertEqualToInProcessChain(packets, frames);
+            assertEqualToInProcessChain(CHAIN, packets, frames);
             var counters = node.sensors().get("belt").counters();
             assertEquals(0, counters.get(NodeCounter.PACKETS_SHED_LATENCY));
             assertEquals(0, counters.get(NodeCounter.PACKETS_SHED_QUEUE));
@@ -158,7 +158,7 @@ class StreamingEndToEndTest {
                     assertEquals(f + 1, frames.get(f).getSequence());
                 }
                 // Bit for bit what a chain that was read out at every frame gives: skipping readouts changes nothing.
-                assertEqualToInProcessChain(packets, frames);
+                assertEqualToInProcessChain(CHAIN, packets, frames);
             } finally {
                 if (sub != null) {
                     sub.close();
@@ -171,8 +171,8 @@ class StreamingEndToEndTest {
      * Checks each frame's float pixels bit for bit against the same chain run in this process over
      * the same packets, with the events before the frame's time applied and read out at that time.
      */
-    private static void assertEqualToInProcessChain(List<EventBatch> packets, List<IntensityFrame> frames) {
-        Chain reference = Chain.build(CHAIN, W, H);
+    static void assertEqualToInProcessChain(String chain, List<EventBatch> packets, List<IntensityFrame> frames) {
+        Chain reference = Chain.build(chain, W, H);
         float[] expected = new float[W * H];
         int packetIndex = 0;
         int eventIndex = 0;
