@@ -88,10 +88,17 @@ class SceneQualityOrderingTest {
     }
 
     @Test
-    @Disabled("Fails on orchard-pan, measured (seed 7, 160x120, 8 s): the standard denoise keeps only"
-            + " 35.9% of signal events and 13.3% of background activity (removes 86.7%), and lowers mean SSIM"
-            + " for direct integration (0.353 -> 0.331) and high-pass (0.476 -> 0.412); complementary rises"
-            + " (0.870 -> 0.879). Slow pan: neighbours rarely fire within the 5 ms window. Reported, not weakened.")
+    /**
+     * Not reachable by a correlation denoiser, measured: during the pan (6 of every 8 s) signal
+     * events cover the whole image at a few events per pixel per second, so a noise event has a
+     * signal neighbour within the window about as often as a signal event does, and whatever lets
+     * 90% of signal through lets most of that noise through too. Sweep at the full 640x480, 8 s,
+     * seed 7, 1 Hz noise (signal kept / noise removed): background-activity 5 ms 0.564/0.840,
+     * 10 ms 0.767/0.740, 20 ms 0.913/0.616, 40 ms 0.979/0.480; correlation k=2 20 ms 0.753/0.808,
+     * k=2 40 ms 0.925/0.693, k=3 40 ms 0.829/0.787, k=3 80 ms 0.952/0.674. At the test's 160x120 the
+     * standard denoise keeps 0.359 of signal and removes 0.867 of noise.
+     */
+    @Disabled("Not reachable by correlation denoise on a whole-field slow pan; measured trade-off in the Javadoc. Reported, not weakened.")
     void denoiseShouldKeepSsimRemoveNoiseAndKeepSignalOnTheSlowPan() {
         checkDenoise(SceneKind.ORCHARD_PAN);
     }
