@@ -110,7 +110,7 @@ public final class AfterglowNode implements AutoCloseable {
                     .channel(NioDatagramChannel.class)
                     .option(ChannelOption.SO_RCVBUF, 8 << 20)
                     // Netty reads datagrams into 2048-byte buffers by default and cuts longer ones short.
-                    .option(ChannelOption.RCVBUF_ALLOCATOR, new FixedRecvByteBufAllocator(MAX_DATAGRAM_BYTES))
+                    .option(ChannelOption.RECVBUF_ALLOCATOR, new FixedRecvByteBufAllocator(MAX_DATAGRAM_BYTES))
                     .handler(new ChannelInitializer<DatagramChannel>() {
                         @Override
                         protected void initChannel(DatagramChannel ch) {
