@@ -19,6 +19,7 @@ import io.netty.channel.ChannelInitializer;
 import io.netty.channel.ChannelOption;
 import io.netty.channel.DefaultEventLoopGroup;
 import io.netty.channel.EventLoopGroup;
+import io.netty.channel.FixedRecvByteBufAllocator;
 import io.netty.channel.MultiThreadIoEventLoopGroup;
 import io.netty.channel.WriteBufferWaterMark;
 import io.netty.channel.nio.NioIoHandler;
@@ -40,6 +41,8 @@ import java.util.concurrent.TimeUnit;
  */
 public final class AfterglowNode implements AutoCloseable {
     private static final int SUBSCRIBE_MAX_BYTES = 64 << 10;
+    /** Largest UDP payload over IPv4: 65,535 - 20 (IP header) - 8 (UDP header). */
+    private static final int MAX_DATAGRAM_BYTES = 65_507;
 
     private final NodeConfig config;
     private final NodeClock clock;
@@ -106,6 +109,8 @@ public final class AfterglowNode implements AutoCloseable {
                     .group(ioGroup)
                     .channel(NioDatagramChannel.class)
                     .option(ChannelOption.SO_RCVBUF, 8 << 20)
+                    // Netty reads datagrams into 2048-byte buffers by default and cuts longer ones short.
+                    .option(ChannelOption.RECVBUF_ALLOCATOR, new FixedRecvByteBufAllocator(MAX_DATAGRAM_BYTES))
                     .handler(new ChannelInitializer<DatagramChannel>() {
                         @Override
                         protected void initChannel(DatagramChannel ch) {
