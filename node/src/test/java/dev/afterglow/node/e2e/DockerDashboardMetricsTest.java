@@ -42,8 +42,10 @@ class DockerDashboardMetricsTest {
     static {
         TOPICS.put("event throughput in and out per sensor", List.of("afterglow_ingest_events_total",
                 "afterglow_stage_input_events_total", "afterglow_stage_output_events_total"));
-        TOPICS.put("packets per transport", List.of("afterglow_ingest_tcp_packets_total", "afterglow_ingest_udp_packets_total"));
-        TOPICS.put("shed events by reason", List.of("afterglow_shed_latency_events_total", "afterglow_shed_queue_events_total"));
+        TOPICS.put("packets and events per transport", List.of("afterglow_ingest_tcp_packets_total", "afterglow_ingest_udp_packets_total",
+                "afterglow_ingest_tcp_events_total", "afterglow_ingest_udp_events_total"));
+        TOPICS.put("shed and rejected events by reason", List.of("afterglow_shed_latency_events_total", "afterglow_shed_queue_events_total",
+                "afterglow_ingest_rejected_events_total"));
         TOPICS.put("malformed input by kind", List.of("afterglow_ingest_packets_malformed_total",
                 "afterglow_ingest_malformed_messages_total", "afterglow_ingest_oversized_messages_total",
                 "afterglow_ingest_truncated_streams_total", "afterglow_ingest_protocol_errors_total"));
@@ -52,7 +54,8 @@ class DockerDashboardMetricsTest {
         TOPICS.put("latency percentiles per sensor", List.of("afterglow_latency_sensor_to_publish_seconds",
                 "afterglow_latency_sensor_to_publish_max_seconds", "afterglow_latency_arrival_to_applied_seconds",
                 "afterglow_latency_arrival_to_applied_max_seconds", "afterglow_latency_readout_seconds",
-                "afterglow_latency_readout_max_seconds"));
+                "afterglow_latency_readout_max_seconds", "afterglow_latency_readout_to_socket_seconds",
+                "afterglow_latency_readout_to_socket_max_seconds", "afterglow_stage_time_seconds", "afterglow_stage_time_max_seconds"));
         TOPICS.put("processing lag", List.of("afterglow_processing_lag_seconds"));
         TOPICS.put("subscribers connected", List.of("afterglow_subscribers_connected"));
         TOPICS.put("frames published and missed", List.of("afterglow_frames_published_total", "afterglow_frames_missed_total"));
@@ -83,7 +86,8 @@ class DockerDashboardMetricsTest {
             StreamingEndToEndTest.waitFor(() -> node.sensors().get("parcel-line") != null
                     && node.sensors().get("parcel-line").counters().get(NodeCounter.PACKETS_TCP) == packets.size()
                     && udpCounters.get(NodeCounter.PACKETS_UDP) > 0); // datagrams may be lost, even on loopback
-            StreamingEndToEndTest.waitFor(() -> node.sensors().get("parcel-line").counters().get(NodeCounter.FRAMES_PUBLISHED) > 0
+            // parcel-line has no subscriber: its frame times pass unread.
+            StreamingEndToEndTest.waitFor(() -> node.sensors().get("parcel-line").counters().get(NodeCounter.FRAMES_UNREAD) > 0
                     && udpCounters.get(NodeCounter.FRAMES_PUBLISHED) > 0);
 
             sub.setTimeoutMillis(10_000);
