@@ -17,6 +17,7 @@ import io.netty.bootstrap.ServerBootstrap;
 import io.netty.channel.Channel;
 import io.netty.channel.ChannelInitializer;
 import io.netty.channel.ChannelOption;
+import io.netty.channel.FixedRecvByteBufAllocator;
 import io.netty.channel.DefaultEventLoopGroup;
 import io.netty.channel.EventLoopGroup;
 import io.netty.channel.MultiThreadIoEventLoopGroup;
@@ -106,6 +107,9 @@ public final class AfterglowNode implements AutoCloseable {
                     .group(ioGroup)
                     .channel(NioDatagramChannel.class)
                     .option(ChannelOption.SO_RCVBUF, 8 << 20)
+                    // Netty reads datagrams into 2048-byte buffers by default and cuts longer ones;
+                    // make room for the largest UDP payload (65,507 bytes).
+                    .option(ChannelOption.RCVBUF_ALLOCATOR, new FixedRecvByteBufAllocator(65_536))
                     .handler(new ChannelInitializer<DatagramChannel>() {
                         @Override
                         protected void initChannel(DatagramChannel ch) {
