@@ -106,6 +106,8 @@ public record StepResult(
             new Column("received", r -> Long.toString(r.received())),
             new Column("applied", r -> Long.toString(r.applied)),
             new Column("dropped", r -> Long.toString(r.outside + r.late)),
+            new Column("dropped_outside", r -> Long.toString(r.outside)),
+            new Column("dropped_late", r -> Long.toString(r.late)),
             new Column("shed_latency", r -> Long.toString(r.shedLatency)),
             new Column("shed_queue", r -> Long.toString(r.shedQueue)),
             new Column("malformed_packets", r -> Long.toString(r.packetsMalformed)),

@@ -75,7 +75,7 @@ class SurgeCommandTest {
     private static final List<String> REQUIRED = List.of("rate_asked", "offered_ev_s", "applied_ev_s", "shed_pct",
             "e2e_p50_ms", "e2e_p99_ms", "e2e_p999_ms", "e2e_max_ms", "s2p_p50_ms", "s2p_p99_ms", "s2p_p999_ms",
             "s2p_max_ms", "a2p_p50_ms", "a2p_p99_ms", "a2p_p999_ms", "a2p_max_ms", "frames_s_per_sub",
-            "frames_min_sub", "missed", "sent", "received", "applied", "dropped", "shed_latency", "shed_queue",
+            "frames_min_sub", "missed", "sent", "received", "applied", "dropped", "dropped_outside", "dropped_late", "shed_latency", "shed_queue",
             "malformed_packets", "difference");
 
     @Test
@@ -143,6 +143,7 @@ class SurgeCommandTest {
             assertEquals(sent, Long.parseLong(r.get("received")), r.toString());
             assertEquals(Long.parseLong(r.get("received")), Long.parseLong(r.get("applied")) + Long.parseLong(r.get("dropped"))
                     + Long.parseLong(r.get("shed_latency")) + Long.parseLong(r.get("shed_queue")), r.toString());
+            assertEquals(Long.parseLong(r.get("dropped")), Long.parseLong(r.get("dropped_outside")) + Long.parseLong(r.get("dropped_late")));
             assertEquals("0", r.get("malformed_packets"));
             assertEquals("0", r.get("difference"));
             assertTrue(Long.parseLong(r.get("frames_min_sub")) > 0, r.toString());
