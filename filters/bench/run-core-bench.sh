@@ -15,7 +15,7 @@
 #                    JMH rejects an option given twice, so change them here, not in JMH_ARG.
 #   BENCH_MVN_FLAGS  extra Maven flags, e.g. -o to stay offline once ~/.m2 holds the plugins.
 #
-# The whole suite (19 benchmarks) takes about 8 minutes. Run it on an otherwise idle machine: JMH
+# The whole suite (20 benchmarks) takes about 8 minutes. Run it on an otherwise idle machine: JMH
 # measures wall-clock time, and other load on the 2 cores shows up directly in the scores.
 #
 # Writes RESULTS_DIR/core-YYYYmmdd-HHMMSS.txt (JMH's full output with the summary table at the end,

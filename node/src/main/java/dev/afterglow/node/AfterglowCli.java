@@ -4,6 +4,7 @@ import dev.afterglow.node.assess.AssessCommand;
 import dev.afterglow.node.cli.DemoCommand;
 import dev.afterglow.node.cli.FeedCommand;
 import dev.afterglow.node.cli.ServeCommand;
+import dev.afterglow.node.cli.SurgeCommand;
 import dev.afterglow.node.cli.WatchCommand;
 import picocli.CommandLine;
 import picocli.CommandLine.Command;
@@ -11,14 +12,14 @@ import picocli.CommandLine.Command;
 /**
  * Entry point of the {@code afterglow} command. Subcommands: {@code serve} (run the node), {@code demo}
  * (node + synthetic sensor + subscriber on loopback), {@code feed} (act as a sensor), {@code watch}
- * (act as a subscriber), {@code assess} (reconstruction quality report) and {@code stages} (the chain description reference). Exit codes: 0 success, 2 bad usage, 1 runtime failure.
+ * (act as a subscriber), {@code surge} (load generator), {@code assess} (reconstruction quality report) and {@code stages} (the chain description reference). Exit codes: 0 success, 2 bad usage, 1 runtime failure.
  */
 @Command(name = "afterglow",
         mixinStandardHelpOptions = true,
         version = "afterglow 0.1.0",
         description = "Live event-camera intensity reconstruction.",
         subcommands = {ServeCommand.class, DemoCommand.class, FeedCommand.class, WatchCommand.class,
-                AssessCommand.class, StagesCommand.class, CommandLine.HelpCommand.class})
+                SurgeCommand.class, AssessCommand.class, StagesCommand.class, CommandLine.HelpCommand.class})
 public final class AfterglowCli implements Runnable {
 
     @CommandLine.Spec
@@ -26,7 +27,7 @@ public final class AfterglowCli implements Runnable {
 
     @Override
     public void run() {
-        throw new CommandLine.ParameterException(spec.commandLine(), "a subcommand is required (serve, demo, feed, watch, assess, stages)");
+        throw new CommandLine.ParameterException(spec.commandLine(), "a subcommand is required (serve, demo, feed, watch, surge, assess, stages)");
     }
 
     /** Builds the command line with one-line errors for bad options. */

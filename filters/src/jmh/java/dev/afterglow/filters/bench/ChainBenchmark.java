@@ -2,6 +2,8 @@ package dev.afterglow.filters.bench;
 
 import dev.afterglow.filters.EventBatch;
 import dev.afterglow.filters.chain.Chain;
+import dev.afterglow.filters.codec.DecodeResult;
+import dev.afterglow.filters.codec.EventPacketCodec;
 import dev.afterglow.filters.recon.Reconstruction;
 import java.util.concurrent.TimeUnit;
 import org.openjdk.jmh.annotations.Benchmark;
@@ -21,6 +23,8 @@ import org.openjdk.jmh.annotations.State;
  *
  * <p>As in {@link StageBenchmark}, each invocation copies a pristine batch into a work batch first;
  * <b>the copy is included in the score</b> ({@link DecodeBenchmark#copyBaseline()} measures it alone).
+ * {@link #decodeAndChain()} starts from the packet's bytes instead, as the node does per packet:
+ * decode (geometry checks included), then the chain.
  */
 @State(Scope.Thread)
 @Fork(value = 1, jvmArgsAppend = {"-Xms1g", "-Xmx1g"}) // fixed heap: no resizing during measurement
@@ -38,6 +42,8 @@ public class ChainBenchmark {
     private Replay replay;
     private SceneEvents events;
     private long readouts;
+    private EventPacketCodec codec;
+    private DecodeResult decoded;
 
     /** Builds the chain and the readout buffer. */
     @Setup(Level.Trial)
@@ -48,6 +54,8 @@ public class ChainBenchmark {
         frame = new float[SceneEvents.WIDTH * SceneEvents.HEIGHT];
         work = new EventBatch(SceneEvents.BATCH_EVENTS);
         replay = new Replay(events);
+        codec = new EventPacketCodec(SceneEvents.WIDTH, SceneEvents.HEIGHT);
+        decoded = new DecodeResult();
     }
 
     /** One batch through the chain. */
@@ -56,6 +64,16 @@ public class ChainBenchmark {
     public int chain() {
         replay.advance();
         replay.copyCurrent(work); // included in the measurement
+        chain.process(work);
+        return work.size;
+    }
+
+    /** One packet per invocation: its bytes decoded into the work batch, then the chain. */
+    @Benchmark
+    @OperationsPerInvocation(SceneEvents.BATCH_EVENTS)
+    public int decodeAndChain() {
+        int b = replay.advance();
+        codec.decode(events.packets[b], SceneEvents.BATCH_EVENTS, events.batches[b].timeBaseUs + replay.shiftUs(), work, decoded);
         chain.process(work);
         return work.size;
     }

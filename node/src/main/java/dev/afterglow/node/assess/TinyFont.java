@@ -7,13 +7,13 @@ import java.util.Map;
  * A 5x7 bitmap font of our own for labelling pictures without system fonts (a headless JDK may
  * have none). Covers A-Z (lower case is drawn as upper case), 0-9 and {@code . , : ; - + = / ( ) % _ < > ' * | #}
  * and space; other characters are drawn as a small box. Each glyph advances 6 pixels (one blank
- * column) at scale 1, lines advance 9 pixels.
+ * column) at scale 1, lines advance 9 pixels. Also used for the load generator's plot.
  */
-final class TinyFont {
-    static final int GLYPH_WIDTH = 5;
-    static final int GLYPH_HEIGHT = 7;
-    static final int ADVANCE = 6;
-    static final int LINE = 9;
+public final class TinyFont {
+    public static final int GLYPH_WIDTH = 5;
+    public static final int GLYPH_HEIGHT = 7;
+    public static final int ADVANCE = 6;
+    public static final int LINE = 9;
 
     private static final Map<Character, int[]> GLYPHS = new HashMap<>();
 
@@ -103,12 +103,12 @@ final class TinyFont {
     }
 
     /** True if {@code c} has a glyph of its own (after upper-casing). */
-    static boolean covers(char c) {
+    public static boolean covers(char c) {
         return GLYPHS.containsKey(Character.toUpperCase(c));
     }
 
     /** Width in pixels of {@code text} at {@code scale} (without the trailing blank column). */
-    static int width(String text, int scale) {
+    public static int width(String text, int scale) {
         return text.isEmpty() ? 0 : (text.length() * ADVANCE - 1) * scale;
     }
 
@@ -116,7 +116,7 @@ final class TinyFont {
      * Draws {@code text} with its top-left corner at (x, y) into an 8-bit grey raster of width
      * {@code stride}, setting covered pixels to {@code value}; clipped to the raster.
      */
-    static void draw(byte[] raster, int stride, int height, int x, int y, String text, int scale, int value) {
+    public static void draw(byte[] raster, int stride, int height, int x, int y, String text, int scale, int value) {
         int cx = x;
         for (int k = 0; k < text.length(); k++) {
             int[] g = GLYPHS.getOrDefault(Character.toUpperCase(text.charAt(k)), UNKNOWN);

@@ -1,0 +1,54 @@
+package dev.afterglow.node.surge;
+
+import dev.afterglow.filters.synth.SceneKind;
+import java.nio.file.Path;
+
+/**
+ * The validated settings of a load-generator run (checked by the {@code surge} command).
+ *
+ * @param nodeHost node's ingest host
+ * @param nodePort node's ingest port (TCP or UDP, by {@code udp})
+ * @param subscribeHost node's subscriber host
+ * @param subscribePort node's subscriber port
+ * @param httpHost node's HTTP host
+ * @param httpPort node's HTTP port
+ * @param udp true to send over UDP (the node must already know the sensors), false for TCP
+ * @param sensors number of sensors, ids {@code surge-0 ..}
+ * @param subscribers subscribers per sensor
+ * @param rates the sweep, events/s per sensor
+ * @param stepSeconds measured host seconds per step
+ * @param warmupSeconds host seconds sent at the step's rate before each measured step
+ * @param width sensor width
+ * @param height sensor height
+ * @param scene the synthetic scene of the event loop
+ * @param packetUs sensor time per packet (span)
+ * @param out folder for the CSV and the PNG
+ * @param subscriberRateHz frames per second each subscriber asks for (0: every frame)
+ * @param seed seed of the synthetic sensor
+ */
+public record SurgeSettings(
+        String nodeHost,
+        int nodePort,
+        String subscribeHost,
+        int subscribePort,
+        String httpHost,
+        int httpPort,
+        boolean udp,
+        int sensors,
+        int subscribers,
+        RateList rates,
+        double stepSeconds,
+        double warmupSeconds,
+        int width,
+        int height,
+        SceneKind scene,
+        long packetUs,
+        Path out,
+        double subscriberRateHz,
+        long seed) {
+
+    /** Id of sensor {@code i}. */
+    public static String sensorId(int i) {
+        return "surge-" + i;
+    }
+}
