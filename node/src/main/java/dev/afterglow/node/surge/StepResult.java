@@ -10,12 +10,14 @@ import org.HdrHistogram.Histogram;
  * columns ({@link #COLUMNS}), shared by the table on stdout and the CSV.
  *
  * <p>Event accounting, from the node's counters (differences across the step):
- * {@code received} = events in packets that reached the chain ({@code afterglow_ingest_events_total})
- * plus the events of shed packets; {@code applied} = events that entered the chain's first stage
- * ({@code afterglow_stage_input_events_total{position="0"}}), {@code dropped} = events outside the
- * sensor or late. The generator's own count must match:
- * {@code sent = applied + dropped + shed(latency) + shed(queue)}, with no malformed packets;
- * {@link #difference()} is what is left over (UDP datagrams lost on the way show up there).
+ * {@code received} = events in every packet the node took in, by transport
+ * ({@code afterglow_ingest_tcp_events_total + afterglow_ingest_udp_events_total}); {@code applied} =
+ * events that entered the chain's first stage ({@code afterglow_stage_input_events_total{position="0"}});
+ * {@code dropped} = events outside the sensor or late; {@code rejected} = events in packets
+ * rejected whole (malformed, UDP duplicate or late). The node's own accounting must close,
+ * {@code received = applied + dropped + shed(latency) + shed(queue) + rejected}, and the generator's
+ * count must match it: {@link #difference()} is {@code sent} minus that sum (UDP datagrams lost on
+ * the way show up there).
  *
  * @param step 1-based step number
  * @param rateLabel the rate as asked (per sensor), e.g. {@code 2M} or {@code max}
@@ -24,12 +26,14 @@ import org.HdrHistogram.Histogram;
  * @param sensors sensors streaming
  * @param sent events sent
  * @param packetsSent packets sent
+ * @param received events in packets the node took in (TCP and UDP)
  * @param reachedChain events in packets that reached the chain
  * @param applied events that entered the chain's first stage
  * @param outside events dropped outside the sensor
  * @param late events dropped as late
  * @param shedLatency events shed for the latency budget
  * @param shedQueue events shed for a full queue
+ * @param rejected events in packets rejected whole
  * @param packetsReceived packets the node counted (TCP and UDP)
  * @param packetsMalformed packets the node rejected as malformed
  * @param udpLost UDP packets the node saw missing from the sequence
@@ -52,12 +56,14 @@ public record StepResult(
         int sensors,
         long sent,
         long packetsSent,
+        long received,
         long reachedChain,
         long applied,
         long outside,
         long late,
         long shedLatency,
         long shedQueue,
+        long rejected,
         long packetsReceived,
         long packetsMalformed,
         long udpLost,
@@ -103,13 +109,14 @@ public record StepResult(
             new Column("node_missed", r -> Long.toString(r.nodeFramesMissed)),
             new Column("node_skipped", r -> Long.toString(r.framesSkipped)),
             new Column("sent", r -> Long.toString(r.sent)),
-            new Column("received", r -> Long.toString(r.received())),
+            new Column("received", r -> Long.toString(r.received)),
             new Column("applied", r -> Long.toString(r.applied)),
             new Column("dropped", r -> Long.toString(r.outside + r.late)),
             new Column("dropped_outside", r -> Long.toString(r.outside)),
             new Column("dropped_late", r -> Long.toString(r.late)),
             new Column("shed_latency", r -> Long.toString(r.shedLatency)),
             new Column("shed_queue", r -> Long.toString(r.shedQueue)),
+            new Column("rejected", r -> Long.toString(r.rejected)),
             new Column("malformed_packets", r -> Long.toString(r.packetsMalformed)),
             new Column("difference", r -> Long.toString(r.difference())),
             new Column("seconds", r -> String.format(Locale.ROOT, "%.3f", r.seconds)));
@@ -119,14 +126,14 @@ public record StepResult(
         return seconds > 0 ? sent / seconds : Double.NaN;
     }
 
-    /** Events in packets the node received: those that reached the chain plus those shed. */
-    public long received() {
-        return reachedChain + shedLatency + shedQueue;
+    /** What the node accounted for: applied, dropped, shed and rejected. */
+    public long accounted() {
+        return applied + outside + late + shedLatency + shedQueue + rejected;
     }
 
-    /** Sent minus what the node accounted for (applied, dropped, shed); 0 when every event is accounted for. */
+    /** Sent minus what the node accounted for; 0 when every event is accounted for. */
     public long difference() {
-        return sent - (applied + outside + late + shedLatency + shedQueue);
+        return sent - accounted();
     }
 
     /** Fewest frames any subscriber received. */
@@ -175,10 +182,10 @@ public record StepResult(
      */
     public String consistencyLine() {
         return String.format(Locale.ROOT,
-                "step %d: sent %d = applied %d + dropped %d (outside %d, late %d) + shed %d (latency %d, queue %d);"
-                        + " node received %d; packets sent %d, node counted %d, malformed %d%s; difference %d%s",
+                "step %d: sent %d = applied %d + dropped %d (outside %d, late %d) + shed %d (latency %d, queue %d)"
+                        + " + rejected %d; node received %d; packets sent %d, node counted %d, malformed %d%s; difference %d%s",
                 step, sent, applied, outside + late, outside, late, shedLatency + shedQueue, shedLatency, shedQueue,
-                received(), packetsSent, packetsReceived, packetsMalformed,
+                rejected, received, packetsSent, packetsReceived, packetsMalformed,
                 udpLost > 0 ? ", UDP lost " + udpLost : "", difference(), drained ? "" : " (node had not settled)");
     }
 }

@@ -173,12 +173,14 @@ public final class Surge {
             window += (p.endSensorUs() - p.firstSensorUs()) * 1e-6 / phases.size();
         }
         return new StepResult(k + 1, s.rates().labels().get(k), seconds, window, ids.size(), sent, packets,
+                delta(before, after, ids, NodeCounter.EVENTS_TCP) + delta(before, after, ids, NodeCounter.EVENTS_UDP),
                 delta(before, after, ids, NodeCounter.EVENTS_RECEIVED),
                 deltaChainInput(before, after, ids),
                 delta(before, after, ids, NodeCounter.EVENTS_OUTSIDE_SENSOR),
                 delta(before, after, ids, NodeCounter.EVENTS_LATE),
                 delta(before, after, ids, NodeCounter.EVENTS_SHED_LATENCY),
                 delta(before, after, ids, NodeCounter.EVENTS_SHED_QUEUE),
+                delta(before, after, ids, NodeCounter.EVENTS_REJECTED),
                 delta(before, after, ids, NodeCounter.PACKETS_TCP) + delta(before, after, ids, NodeCounter.PACKETS_UDP),
                 delta(before, after, ids, NodeCounter.PACKETS_MALFORMED),
                 delta(before, after, ids, NodeCounter.UDP_LOST),

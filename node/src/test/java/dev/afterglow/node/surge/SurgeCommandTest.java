@@ -75,8 +75,8 @@ class SurgeCommandTest {
     private static final List<String> REQUIRED = List.of("rate_asked", "offered_ev_s", "applied_ev_s", "shed_pct",
             "e2e_p50_ms", "e2e_p99_ms", "e2e_p999_ms", "e2e_max_ms", "s2p_p50_ms", "s2p_p99_ms", "s2p_p999_ms",
             "s2p_max_ms", "a2p_p50_ms", "a2p_p99_ms", "a2p_p999_ms", "a2p_max_ms", "frames_s_per_sub",
-            "frames_min_sub", "missed", "sent", "received", "applied", "dropped", "dropped_outside", "dropped_late", "shed_latency", "shed_queue",
-            "malformed_packets", "difference");
+            "frames_min_sub", "missed", "sent", "received", "applied", "dropped", "dropped_outside", "dropped_late",
+            "shed_latency", "shed_queue", "rejected", "malformed_packets", "difference");
 
     @Test
     @Timeout(value = 60, unit = TimeUnit.SECONDS)
@@ -138,11 +138,13 @@ class SurgeCommandTest {
             long sent = Long.parseLong(r.get("sent"));
             assertTrue(sent > 0, r.toString());
             sentTotal += sent;
-            // Counts add up: every event sent is one the node received, and the node's events that
-            // reached the chain are those its first stage took in plus those it dropped (the check).
+            // Counts add up: every event sent is one the node received (its per-transport counter),
+            // and received = applied + dropped + shed + rejected, from independent node counters.
             assertEquals(sent, Long.parseLong(r.get("received")), r.toString());
             assertEquals(Long.parseLong(r.get("received")), Long.parseLong(r.get("applied")) + Long.parseLong(r.get("dropped"))
-                    + Long.parseLong(r.get("shed_latency")) + Long.parseLong(r.get("shed_queue")), r.toString());
+                    + Long.parseLong(r.get("shed_latency")) + Long.parseLong(r.get("shed_queue"))
+                    + Long.parseLong(r.get("rejected")), r.toString());
+            assertEquals("0", r.get("rejected"));
             assertEquals(Long.parseLong(r.get("dropped")), Long.parseLong(r.get("dropped_outside")) + Long.parseLong(r.get("dropped_late")));
             assertEquals("0", r.get("malformed_packets"));
             assertEquals("0", r.get("difference"));
