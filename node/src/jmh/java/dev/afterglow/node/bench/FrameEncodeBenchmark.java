@@ -3,6 +3,7 @@ package dev.afterglow.node.bench;
 import dev.afterglow.filters.readout.ToneMap;
 import dev.afterglow.filters.readout.ToneMapper;
 import dev.afterglow.node.pipeline.NodeClock;
+import dev.afterglow.metrics.LatencyRecorder;
 import dev.afterglow.node.publish.FrameData;
 import dev.afterglow.node.publish.FramePublisher;
 import dev.afterglow.node.publish.Subscription;
@@ -58,6 +59,8 @@ public class FrameEncodeBenchmark {
     private Provenance provenance;
     private long sequence;
 
+    private LatencyRecorder writeLatency;
+
     /** Builds the image, the publisher and one subscription on an embedded channel. */
     @Setup(Level.Trial)
     public void setUp() {
@@ -75,6 +78,7 @@ public class FrameEncodeBenchmark {
         PixelFormat f = format.equals("gray8") ? PixelFormat.PIXEL_FORMAT_GRAY8 : PixelFormat.PIXEL_FORMAT_LOG_F32;
         publisher.add(new Subscription(channel, "bench", f, 0, 0, WIDTH, HEIGHT, 1, 0));
         counters = new Counters();
+        writeLatency = LatencyRecorder.forConcurrentWriters();
         provenance = Provenance.newBuilder().setEventsApplied(40_000).setEventsDropped(12)
                 .addStages(StageCount.newBuilder().setStage("refractory").setEventsIn(40_100).setEventsRemoved(60))
                 .addStages(StageCount.newBuilder().setStage("background-activity").setEventsIn(40_040).setEventsRemoved(40))
@@ -88,8 +92,8 @@ public class FrameEncodeBenchmark {
         long seq = ++sequence;
         long nowUs = System.nanoTime() / 1000;
         FrameData frame = new FrameData("bench", seq, seq, seq * 10_000, (seq - 1) * 10_000, WIDTH, HEIGHT, 100,
-                log, this::gray8, provenance, nowUs - 2_000, nowUs - 500, 100_000);
-        publisher.publish(frame, counters);
+                log, this::gray8, provenance, nowUs - 2_000, nowUs - 500, nowUs * 1000 - 100_000, 100_000);
+        publisher.publish(frame, counters, writeLatency);
         long bytes = 0;
         for (ByteBuf b; (b = channel.readOutbound()) != null; ) {
             bytes += b.readableBytes();

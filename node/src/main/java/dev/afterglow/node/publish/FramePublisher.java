@@ -12,6 +12,7 @@ import dev.afterglow.proto.v1.Provenance;
 import dev.afterglow.proto.v1.Region;
 import dev.afterglow.metrics.LatencyRecorder;
 import io.netty.buffer.ByteBuf;
+import io.netty.buffer.PooledByteBufAllocator;
 import io.netty.channel.ChannelPromise;
 import java.util.HashMap;
 import java.util.List;
@@ -119,7 +120,7 @@ public final class FramePublisher {
     private ByteBuf encode(FrameData f, Subscription.RenderKey k) {
         byte[] pixels = k.format() == PixelFormat.PIXEL_FORMAT_LOG_F32
                 ? RegionRenderer.logF32(f.log(), f.width(), k)
-                : RegionRenderer.gray(f.gray8().get(), f.width(), k);
+                : RegionRenderer.gray(f.gray8().get(), f.width(), f.height(), k);
         long nowUs = clock.monotonicNanos() / 1000;
         Provenance.Builder p = f.provenance().toBuilder()
                 .setPublishHostTimeNs(clock.wallNanos())
@@ -142,9 +143,10 @@ public final class FramePublisher {
                 .setPixels(UnsafeByteOperations.unsafeWrap(pixels))
                 .setProvenance(p)
                 .build();
+        // Pooled: the buffer goes back to the pool once every subscriber's write has completed.
         return Envelopes.delimited(Envelope.newBuilder()
                 .setSchemaVersion(Envelopes.SCHEMA_VERSION)
                 .setIntensityFrame(frame)
-                .build());
+                .build(), PooledByteBufAllocator.DEFAULT);
     }
 }

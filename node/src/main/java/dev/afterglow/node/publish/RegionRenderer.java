@@ -13,10 +13,17 @@ final class RegionRenderer {
         return width / downscale;
     }
 
-    static byte[] gray(byte[] src, int srcWidth, Subscription.RenderKey k) {
+    /**
+     * Gray pixels of the region; the whole frame at full scale is {@code src} itself (the caller
+     * encodes it before the pipeline reuses the array), anything else a new array.
+     */
+    static byte[] gray(byte[] src, int srcWidth, int srcHeight, Subscription.RenderKey k) {
         int ds = k.downscale();
         int ow = k.width() / ds;
         int oh = k.height() / ds;
+        if (ds == 1 && k.x() == 0 && k.y() == 0 && ow == srcWidth && oh == srcHeight) {
+            return src;
+        }
         byte[] out = new byte[ow * oh];
         if (ds == 1) {
             for (int y = 0; y < oh; y++) {

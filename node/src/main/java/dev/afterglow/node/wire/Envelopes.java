@@ -1,12 +1,15 @@
 package dev.afterglow.node.wire;
 
+import com.google.protobuf.CodedInputStream;
 import com.google.protobuf.CodedOutputStream;
 import com.google.protobuf.InvalidProtocolBufferException;
+import com.google.protobuf.UnsafeByteOperations;
 import dev.afterglow.proto.v1.Envelope;
 import dev.afterglow.proto.v1.SchemaVersion;
 import io.netty.buffer.ByteBuf;
-import io.netty.buffer.ByteBufInputStream;
-import io.netty.buffer.Unpooled;
+import io.netty.buffer.ByteBufAllocator;
+import io.netty.buffer.ByteBufUtil;
+import io.netty.buffer.UnpooledByteBufAllocator;
 import java.io.IOException;
 
 /** Parsing envelopes from buffers and encoding them with the varint length prefix. */
@@ -17,32 +20,43 @@ public final class Envelopes {
     private Envelopes() {
     }
 
-    /** Parses one envelope from all readable bytes of {@code buf} (not released here). */
+    /**
+     * Parses one envelope from all readable bytes of {@code buf} (not released here). The bytes are
+     * copied once into a fresh array, and bytes fields (a packet's events, a frame's pixels) are
+     * views of that array, not second copies: the hot path's only per-packet allocation.
+     */
     public static Envelope parse(ByteBuf buf) throws InvalidProtocolBufferException {
-        if (buf.nioBufferCount() == 1) {
-            return Envelope.parseFrom(buf.nioBuffer());
-        }
-        try (ByteBufInputStream in = new ByteBufInputStream(buf.duplicate())) {
+        CodedInputStream in = UnsafeByteOperations.unsafeWrap(ByteBufUtil.getBytes(buf)).newCodedInput();
+        in.enableAliasing(true);
+        try {
             return Envelope.parseFrom(in);
         } catch (InvalidProtocolBufferException e) {
             throw e;
-        } catch (IOException e) {
+        } catch (IOException e) { // an in-memory input only fails with the above
             throw new InvalidProtocolBufferException(e);
         }
     }
 
     /** The envelope with its varint length prefix, in a new heap buffer. */
     public static ByteBuf delimited(Envelope envelope) {
+        return delimited(envelope, UnpooledByteBufAllocator.DEFAULT);
+    }
+
+    /** The envelope with its varint length prefix, in a heap buffer from {@code alloc} (release it when sent). */
+    public static ByteBuf delimited(Envelope envelope, ByteBufAllocator alloc) {
         int size = envelope.getSerializedSize();
-        byte[] bytes = new byte[CodedOutputStream.computeUInt32SizeNoTag(size) + size];
-        CodedOutputStream out = CodedOutputStream.newInstance(bytes);
+        int total = CodedOutputStream.computeUInt32SizeNoTag(size) + size;
+        ByteBuf buf = alloc.heapBuffer(total, total);
         try {
+            CodedOutputStream out = CodedOutputStream.newInstance(buf.array(), buf.arrayOffset() + buf.writerIndex(), total);
             out.writeUInt32NoTag(size);
             envelope.writeTo(out);
             out.checkNoSpaceLeft();
-        } catch (IOException e) {
-            throw new IllegalStateException("encoding into an exactly sized array failed", e);
+            buf.writerIndex(buf.writerIndex() + total);
+            return buf;
+        } catch (IOException | RuntimeException e) {
+            buf.release();
+            throw new IllegalStateException("encoding into an exactly sized buffer failed", e);
         }
-        return Unpooled.wrappedBuffer(bytes);
     }
 }
