@@ -11,6 +11,7 @@ import dev.afterglow.filters.recon.ComplementaryFilter;
 import dev.afterglow.metrics.LatencyRecorder;
 import dev.afterglow.node.config.SensorConfig;
 import dev.afterglow.node.config.ToneMapText;
+import dev.afterglow.node.live.LiveTap;
 import dev.afterglow.node.publish.FrameData;
 import dev.afterglow.node.publish.FramePublisher;
 import dev.afterglow.node.stats.Counters;
@@ -72,6 +73,7 @@ public final class SensorPipeline {
     private final LatencyRecorder readoutDuration = new LatencyRecorder();
     private final LatencyRecorder arrivalToApplied = new LatencyRecorder();
     private volatile long lagNanos;
+    private final LiveTap live;
 
     private volatile SensorConfig config;
     private volatile Chain chain;
@@ -116,6 +118,7 @@ public final class SensorPipeline {
         this.tail = new EventBatch(maxEventsPerPacket);
         this.log = new float[width * height];
         this.gray = new byte[width * height];
+        this.live = new LiveTap(width, height, clock, counters);
         applyConfig(config, Chain.build(config.chainSpec(), width, height));
     }
 
@@ -406,6 +409,7 @@ public final class SensorPipeline {
             return;
         }
         long newest = b.timeBaseUs + b.maxT;
+        live.accumulate(b); // live view: raw activity before denoise, only while someone watches
         chain.process(b);
         eventsSinceFrame += b.size;
         int everyN = config.readoutEveryEvents;
@@ -484,6 +488,7 @@ public final class SensorPipeline {
         FrameData frame = new FrameData(id, seq, gridIndex, frameTimeUs, windowStartUs, width, height, rateHz,
                 log, this::gray8, p.build(), clockMapper.toHostUs(frameTimeUs), newestArrivalUs, readoutNanos);
         publisher.publish(frame, counters);
+        live.onFrame(frame);
         readoutDuration.recordNanos(readoutNanos);
         sensorToPublish.recordNanos(clock.monotonicNanos() - frame.frameHostUs() * 1000);
         lastFrameUs = frameTimeUs;
@@ -519,6 +524,11 @@ public final class SensorPipeline {
     /** Processing lag: arrival-to-applied time of the last packet processed, in nanoseconds. Any thread. */
     public long lagNanos() {
         return lagNanos;
+    }
+
+    /** The live view tap: who watches this sensor ({@link LiveTap#watching()}, any thread). */
+    public LiveTap live() {
+        return live;
     }
 
     /** Current frame rate. */
