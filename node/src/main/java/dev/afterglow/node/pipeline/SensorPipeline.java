@@ -488,9 +488,9 @@ public final class SensorPipeline {
         FrameData frame = new FrameData(id, seq, gridIndex, frameTimeUs, windowStartUs, width, height, rateHz,
                 log, this::gray8, p.build(), clockMapper.toHostUs(frameTimeUs), newestArrivalUs, readoutNanos);
         publisher.publish(frame, counters);
-        live.onFrame(frame);
         readoutDuration.recordNanos(readoutNanos);
         sensorToPublish.recordNanos(clock.monotonicNanos() - frame.frameHostUs() * 1000);
+        live.onFrame(frame); // after the latency record: a live view page does not count as a subscriber
         lastFrameUs = frameTimeUs;
         windowStartUs = frameTimeUs;
         eventsSinceFrame = 0;
