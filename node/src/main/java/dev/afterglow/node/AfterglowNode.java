@@ -4,6 +4,9 @@ import dev.afterglow.node.config.NodeConfig;
 import dev.afterglow.node.http.HttpEndpoints;
 import dev.afterglow.node.ingest.TcpIngestHandler;
 import dev.afterglow.node.ingest.UdpIngestHandler;
+import dev.afterglow.node.live.LiveSocketGate;
+import dev.afterglow.node.live.LiveSocketHandler;
+import dev.afterglow.node.live.LiveViews;
 import dev.afterglow.node.pipeline.NodeClock;
 import dev.afterglow.node.pipeline.SensorRegistry;
 import dev.afterglow.node.publish.FramePublisher;
@@ -29,6 +32,7 @@ import io.netty.channel.socket.nio.NioDatagramChannel;
 import io.netty.channel.socket.nio.NioServerSocketChannel;
 import io.netty.handler.codec.http.HttpObjectAggregator;
 import io.netty.handler.codec.http.HttpServerCodec;
+import io.netty.handler.codec.http.websocketx.WebSocketServerProtocolHandler;
 import io.micrometer.prometheusmetrics.PrometheusConfig;
 import io.micrometer.prometheusmetrics.PrometheusMeterRegistry;
 import java.net.InetSocketAddress;
@@ -57,6 +61,7 @@ public final class AfterglowNode implements AutoCloseable {
     private Channel httpServer;
     private final PrometheusMeterRegistry meterRegistry = new PrometheusMeterRegistry(PrometheusConfig.DEFAULT);
     private final NodeMeters meters;
+    private final LiveViews liveViews;
     private volatile boolean ready;
 
     private AfterglowNode(NodeConfig config, NodeClock clock) {
@@ -67,6 +72,7 @@ public final class AfterglowNode implements AutoCloseable {
         this.publisher = new FramePublisher(clock);
         this.registry = new SensorRegistry(config, pipelineGroup, publisher, clock, nodeCounters);
         this.meters = new NodeMeters(meterRegistry, registry, publisher, nodeCounters);
+        this.liveViews = new LiveViews(registry, clock);
     }
 
     /** Starts a node with the system clock. */
@@ -138,13 +144,19 @@ public final class AfterglowNode implements AutoCloseable {
         }
         if (config.listen.httpPort >= 0) {
             HttpEndpoints endpoints = new HttpEndpoints(meterRegistry, meters, registry, publisher, config.control, () -> ready);
+            LiveSocketGate liveGate = new LiveSocketGate(liveViews);
             httpServer = new ServerBootstrap()
                     .group(ioGroup)
                     .channel(NioServerSocketChannel.class)
+                    // Live view pages that fall behind skip frames instead of queueing them.
+                    .childOption(ChannelOption.WRITE_BUFFER_WATER_MARK,
+                            new WriteBufferWaterMark(LiveViews.LOW_WATER_BYTES, LiveViews.HIGH_WATER_BYTES))
                     .childHandler(new ChannelInitializer<SocketChannel>() {
                         @Override
                         protected void initChannel(SocketChannel ch) {
-                            ch.pipeline().addLast(new HttpServerCodec(), new HttpObjectAggregator(64 << 10), endpoints);
+                            ch.pipeline().addLast(new HttpServerCodec(), new HttpObjectAggregator(64 << 10), liveGate,
+                                    new WebSocketServerProtocolHandler(LiveSocketGate.protocolConfig()),
+                                    new LiveSocketHandler(liveViews), endpoints);
                         }
                     })
                     .bind(new InetSocketAddress(address, config.listen.httpPort)).sync().channel();
@@ -190,6 +202,11 @@ public final class AfterglowNode implements AutoCloseable {
     /** The sensors. */
     public SensorRegistry sensors() {
         return registry;
+    }
+
+    /** Live view pages and who watches which sensor. */
+    public LiveViews liveViews() {
+        return liveViews;
     }
 
     /** Subscriber fan-out. */

@@ -80,6 +80,8 @@ public final class DemoCommand implements Callable<Integer> {
         System.out.printf(Locale.ROOT, "afterglow demo: node on 127.0.0.1, sensor %s %dx%d, chain: %s%n",
                 sensorId, width, height, config.sensors.get(0).chainSpec());
         try (AfterglowNode node = AfterglowNode.start(config)) {
+            System.out.printf(Locale.ROOT, "afterglow demo: live view at http://127.0.0.1:%d/live?sensor=%s%n",
+                    node.httpPort(), sensorId);
             AtomicReference<Exception> feedError = new AtomicReference<>();
             Thread feeder = new Thread(() -> {
                 try (SensorClient c = SensorClient.connect("127.0.0.1", node.ingestTcpPort(), sensorId, width, height, true)) {

@@ -24,7 +24,7 @@ public final class ServeCommand implements Callable<Integer> {
         System.out.printf("afterglow: listening on %s  sensors tcp:%d udp:%d  subscribers tcp:%d%n",
                 c.listen.address, node.ingestTcpPort(), node.ingestUdpPort(), node.subscriberPort());
         if (node.httpPort() >= 0) {
-            System.out.printf("afterglow: http on %s:%d (/metrics /health /ready /status)%n", c.listen.address, node.httpPort());
+            System.out.printf("afterglow: http on %s:%d (/metrics /health /ready /status /live)%n", c.listen.address, node.httpPort());
         }
         CountDownLatch stopped = new CountDownLatch(1);
         Runtime.getRuntime().addShutdownHook(new Thread(() -> {

@@ -4,6 +4,7 @@ import com.fasterxml.jackson.databind.ObjectMapper;
 import com.fasterxml.jackson.databind.node.ArrayNode;
 import com.fasterxml.jackson.databind.node.ObjectNode;
 import dev.afterglow.node.config.ControlConfig;
+import dev.afterglow.node.live.LivePages;
 import dev.afterglow.node.pipeline.SensorPipeline;
 import dev.afterglow.node.pipeline.SensorRegistry;
 import dev.afterglow.node.publish.FramePublisher;
@@ -34,9 +35,11 @@ import java.util.function.BooleanSupplier;
 /**
  * The node's HTTP endpoints: {@code GET /metrics} (Prometheus text exposition 0.0.4),
  * {@code /health} (200 while the process serves requests), {@code /ready} (200 once every listener
- * is bound, 503 before), {@code /status} (JSON: sensors and subscribers) and the run-time settings
- * under {@code /config/sensors} ({@link SensorSettingsEndpoint}). Other paths get 404, other methods
- * on these paths 405. Shared by all connections (stateless).
+ * is bound, 503 before), {@code /status} (JSON: sensors and subscribers), the run-time settings
+ * under {@code /config/sensors} ({@link SensorSettingsEndpoint}) and the live view's page and files
+ * ({@link LivePages}, {@code Cache-Control: no-cache}; its WebSocket is handled before this
+ * handler). Other paths get 404, other methods on these paths 405. Shared by all connections
+ * (stateless).
  */
 @ChannelHandler.Sharable
 public final class HttpEndpoints extends SimpleChannelInboundHandler<FullHttpRequest> {
@@ -51,6 +54,7 @@ public final class HttpEndpoints extends SimpleChannelInboundHandler<FullHttpReq
     private final BooleanSupplier ready;
     private final ObjectMapper json = new ObjectMapper();
     private final SensorSettingsEndpoint settings;
+    private final LivePages live = new LivePages();
 
     public HttpEndpoints(PrometheusMeterRegistry prometheus, NodeMeters meters, SensorRegistry sensors,
             FramePublisher publisher, ControlConfig control, BooleanSupplier ready) {
@@ -80,15 +84,16 @@ public final class HttpEndpoints extends SimpleChannelInboundHandler<FullHttpReq
             }));
             return;
         }
+        LivePages.Page page = live.get(path);
         if (!request.decoderResult().isSuccess()) {
             response = text(HttpResponseStatus.BAD_REQUEST, "bad request\n");
-        } else if (!PATHS.contains(path)) {
+        } else if (!PATHS.contains(path) && page == null) {
             response = text(HttpResponseStatus.NOT_FOUND, "not found\n");
         } else if (!HttpMethod.GET.equals(request.method()) && !HttpMethod.HEAD.equals(request.method())) {
             response = text(HttpResponseStatus.METHOD_NOT_ALLOWED, "method not allowed\n");
             response.headers().set(HttpHeaderNames.ALLOW, "GET, HEAD");
         } else {
-            response = switch (path) {
+            response = page != null ? livePage(page) : switch (path) {
                 case "/metrics" -> {
                     meters.refresh();
                     yield body(HttpResponseStatus.OK, PROMETHEUS_TEXT, prometheus.scrape());
@@ -155,6 +160,15 @@ public final class HttpEndpoints extends SimpleChannelInboundHandler<FullHttpReq
         FullHttpResponse r = new DefaultFullHttpResponse(HttpVersion.HTTP_1_1, status,
                 Unpooled.copiedBuffer(body, StandardCharsets.UTF_8));
         r.headers().set(HttpHeaderNames.CONTENT_TYPE, contentType);
+        r.headers().setInt(HttpHeaderNames.CONTENT_LENGTH, r.content().readableBytes());
+        return r;
+    }
+
+    private static FullHttpResponse livePage(LivePages.Page page) {
+        FullHttpResponse r = new DefaultFullHttpResponse(HttpVersion.HTTP_1_1, HttpResponseStatus.OK,
+                Unpooled.wrappedBuffer(page.body()));
+        r.headers().set(HttpHeaderNames.CONTENT_TYPE, page.contentType());
+        r.headers().set(HttpHeaderNames.CACHE_CONTROL, "no-cache");
         r.headers().setInt(HttpHeaderNames.CONTENT_LENGTH, r.content().readableBytes());
         return r;
     }

@@ -1,2 +1,2 @@
-/** The node's HTTP endpoints: Prometheus metrics, health, readiness and a JSON status. */
+/** The node's HTTP endpoints: Prometheus metrics, health, readiness, a JSON status and the live view page. */
 package dev.afterglow.node.http;

@@ -12,6 +12,7 @@ import dev.afterglow.metrics.LatencyRecorder;
 import dev.afterglow.metrics.StageTimers;
 import dev.afterglow.node.config.SensorConfig;
 import dev.afterglow.node.config.ToneMapText;
+import dev.afterglow.node.live.LiveTap;
 import dev.afterglow.node.publish.FrameData;
 import dev.afterglow.node.publish.FramePublisher;
 import dev.afterglow.node.stats.Counters;
@@ -44,7 +45,8 @@ import java.util.concurrent.atomic.AtomicInteger;
  * already older than the budget when due are skipped (counted) except the newest. While the sensor
  * is connected but quiet, a timer publishes the frames whose times have passed (mapped to host
  * time) by more than the budget. Optionally a frame is also read out after every N applied events.
- * While nobody subscribes to the sensor, frame times pass without a readout (counted as unread).
+ * While nobody subscribes to the sensor or watches its live view, frame times pass without a
+ * readout (counted as unread).
  *
  * <p>Time rules: events older than the last published frame are dropped as late (counted). A
  * packet more than {@link #RESTART_THRESHOLD_US} older than the last frame means the sensor's
@@ -78,6 +80,7 @@ public final class SensorPipeline {
     private final LatencyRecorder arrivalToApplied = new LatencyRecorder();
     private final LatencyRecorder readoutToSocket = LatencyRecorder.forConcurrentWriters();
     private volatile long lagNanos;
+    private final LiveTap live;
 
     private volatile SensorConfig config;
     private volatile Chain chain;
@@ -123,6 +126,7 @@ public final class SensorPipeline {
         this.tail = new EventBatch(maxEventsPerPacket);
         this.log = new float[width * height];
         this.gray = new byte[width * height];
+        this.live = new LiveTap(width, height, clock, counters);
         applyConfig(config, Chain.build(config.chainSpec(), width, height));
     }
 
@@ -427,6 +431,7 @@ public final class SensorPipeline {
             return;
         }
         long newest = b.timeBaseUs + b.maxT;
+        live.accumulate(b); // live view: raw activity before denoise, only while someone watches
         chain.process(b, stageTimers);
         eventsSinceFrame += b.size;
         int everyN = config.readoutEveryEvents;
@@ -481,7 +486,7 @@ public final class SensorPipeline {
     }
 
     private void readoutAndPublish(long frameTimeUs, long gridIndex) {
-        if (!publisher.hasSubscribers(id)) {
+        if (!publisher.hasSubscribers(id) && !live.watching()) {
             // Nobody to show it to: skip the readout (the reconstruction's state does not depend on it).
             counters.increment(NodeCounter.FRAMES_UNREAD);
             markStageCounts();
@@ -514,6 +519,7 @@ public final class SensorPipeline {
         publisher.publish(frame, counters, readoutToSocket);
         readoutDuration.recordNanos(readoutNanos);
         sensorToPublish.recordNanos(clock.monotonicNanos() - frame.frameHostUs() * 1000);
+        live.onFrame(frame); // after the latency record: a live view page does not count as a subscriber
         endWindow(frameTimeUs);
     }
 
@@ -565,6 +571,11 @@ public final class SensorPipeline {
     /** Processing lag: arrival-to-applied time of the last packet processed, in nanoseconds. Any thread. */
     public long lagNanos() {
         return lagNanos;
+    }
+
+    /** The live view tap: who watches this sensor ({@link LiveTap#watching()}, any thread). */
+    public LiveTap live() {
+        return live;
     }
 
     /** Current frame rate. */

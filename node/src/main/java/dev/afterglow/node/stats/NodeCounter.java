@@ -29,6 +29,8 @@ public enum NodeCounter {
     FRAMES_PUBLISHED(Scope.SENSOR, "afterglow.frames.published", "Frames read out and offered to subscribers"),
     FRAMES_UNREAD(Scope.SENSOR, "afterglow.frames.unread", "Frame times that passed with nobody subscribed, so nothing was read out"),
     FRAMES_MISSED(Scope.SENSOR, "afterglow.frames.missed", "Frames a subscriber missed because it could not keep up"),
+    LIVE_FRAMES_SENT(Scope.SENSOR, "afterglow.live.frames.sent", "Frames sent to live view pages (WebSocket)"),
+    LIVE_FRAMES_SKIPPED(Scope.SENSOR, "afterglow.live.frames.skipped", "Live view frames skipped because the page's connection was not writable (latest wins)"),
     MESSAGES_MALFORMED(Scope.NODE, "afterglow.ingest.malformed.messages", "Messages or datagrams that are not valid envelopes"),
     MESSAGES_OVERSIZED(Scope.NODE, "afterglow.ingest.oversized.messages", "TCP messages whose length prefix exceeds the limit (connection closed)"),
     STREAMS_TRUNCATED(Scope.NODE, "afterglow.ingest.truncated.streams", "TCP streams that ended inside a message"),
