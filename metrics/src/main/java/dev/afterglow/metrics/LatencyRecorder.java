@@ -24,6 +24,9 @@ import org.HdrHistogram.ValueRecorder;
  * significant decimal digits; larger values are recorded as the highest. Exported percentiles
  * cover a sliding window of the last {@code windowSlots} slots of {@code slotNanos} each (slots
  * advance lazily on harvest), so a dashboard sees recent behaviour; the sample count is all-time.
+ * A harvest costs two histogram additions (the window is kept as a running sum: the new interval
+ * is added, an expired slot subtracted), and meter reads within {@link #HARVEST_EVERY_NANOS} of
+ * the last harvest reuse it, so one scrape of all six meters harvests once.
  *
  * <p>Meters, for a dotted base name {@code N} (Prometheus names in seconds):
  * gauge {@code N} tagged {@code quantile} = 0.5, 0.9, 0.99, 0.999 ({@code N_seconds}), gauge
@@ -34,6 +37,8 @@ public final class LatencyRecorder implements AutoCloseable {
     public static final long HIGHEST_NANOS = 60_000_000_000L;
     /** Significant decimal digits kept by the histograms. */
     public static final int SIGNIFICANT_DIGITS = 3;
+    /** Reads closer together than this share one harvest. */
+    public static final long HARVEST_EVERY_NANOS = 100_000_000;
     /** Exported quantiles. */
     public static final double[] QUANTILES = {0.5, 0.9, 0.99, 0.999};
 
@@ -45,6 +50,7 @@ public final class LatencyRecorder implements AutoCloseable {
     private Histogram interval;
     private int slot;
     private long slotStartNanos = System.nanoTime();
+    private long lastHarvestNanos = System.nanoTime() - HARVEST_EVERY_NANOS;
     private long totalCount;
     private final List<Meter> meters = new ArrayList<>();
     private MeterRegistry registry;
@@ -91,33 +97,66 @@ public final class LatencyRecorder implements AutoCloseable {
 
     /** Moves what was recorded since the last harvest into the window. Any thread but the writer. */
     public synchronized void harvest() {
-        interval = intervals.getIntervalHistogram(interval);
         long now = System.nanoTime();
+        lastHarvestNanos = now;
+        interval = intervals.getIntervalHistogram(interval);
         if (now - slotStartNanos >= slotNanos) {
             long steps = Math.min(slots.length, (now - slotStartNanos) / slotNanos);
             for (long i = 0; i < steps; i++) {
                 slot = (slot + 1) % slots.length;
-                slots[slot].reset();
+                if (slots[slot].getTotalCount() > 0) {
+                    window.subtract(slots[slot]);
+                    slots[slot].reset();
+                }
             }
             slotStartNanos += ((now - slotStartNanos) / slotNanos) * slotNanos;
         }
-        slots[slot].add(interval);
-        totalCount += interval.getTotalCount();
-        window.reset();
-        for (Histogram h : slots) {
-            window.add(h);
+        if (interval.getTotalCount() > 0) {
+            slots[slot].add(interval);
+            window.add(interval);
+            totalCount += interval.getTotalCount();
         }
+    }
+
+    // What the meters read: one harvest serves every meter read within HARVEST_EVERY_NANOS.
+    private void harvestIfStale() {
+        if (System.nanoTime() - lastHarvestNanos >= HARVEST_EVERY_NANOS) {
+            harvest();
+        }
+    }
+
+    private synchronized double meterQuantileSeconds(double q) {
+        harvestIfStale();
+        return quantile(q) / 1e9;
+    }
+
+    private synchronized double meterMaxSeconds() {
+        harvestIfStale();
+        return max() / 1e9;
+    }
+
+    private synchronized long meterCount() {
+        harvestIfStale();
+        return totalCount;
     }
 
     /** Value (ns) at quantile {@code q} in [0, 1] of the window, after a harvest; 0 if empty. */
     public synchronized long valueAtQuantileNanos(double q) {
         harvest();
+        return quantile(q);
+    }
+
+    private long quantile(double q) {
         return window.getTotalCount() == 0 ? 0 : window.getValueAtPercentile(q * 100);
     }
 
     /** Largest value (ns) in the window, after a harvest; 0 if empty. */
     public synchronized long maxNanos() {
         harvest();
+        return max();
+    }
+
+    private long max() {
         return window.getTotalCount() == 0 ? 0 : window.getMaxValue();
     }
 
@@ -137,18 +176,18 @@ public final class LatencyRecorder implements AutoCloseable {
         }
         this.registry = registry;
         for (double q : QUANTILES) {
-            meters.add(Gauge.builder(name, this, r -> r.valueAtQuantileNanos(q) / 1e9)
+            meters.add(Gauge.builder(name, this, r -> r.meterQuantileSeconds(q))
                     .description(help)
                     .baseUnit("seconds")
                     .tags(tags.and("quantile", Double.toString(q)))
                     .register(registry));
         }
-        meters.add(Gauge.builder(name + ".max", this, r -> r.maxNanos() / 1e9)
+        meters.add(Gauge.builder(name + ".max", this, LatencyRecorder::meterMaxSeconds)
                 .description(help + " (largest in the window)")
                 .baseUnit("seconds")
                 .tags(tags)
                 .register(registry));
-        meters.add(FunctionCounter.builder(name + ".samples", this, LatencyRecorder::count)
+        meters.add(FunctionCounter.builder(name + ".samples", this, LatencyRecorder::meterCount)
                 .description(help + " (values recorded)")
                 .tags(tags)
                 .register(registry));

@@ -104,4 +104,21 @@ class LatencyRecorderTest {
         assertEquals(1_000_000, recorder.valueAtQuantileNanos(0.25), 1_000);
         assertEquals(4_000_000, recorder.maxNanos(), 4_000);
     }
+
+    @Test
+    void slidingWindowShouldDropSlotsOlderThanTheWindowAndKeepRecentOnes() throws InterruptedException {
+        LatencyRecorder recorder = new LatencyRecorder(3, 40_000_000L); // window: 3 slots of 40 ms
+        recorder.recordNanos(50_000_000); // 50 ms
+        recorder.harvest();
+        assertEquals(50_000_000, recorder.maxNanos(), 50_000);
+        Thread.sleep(50); // at least one slot later: the 50 ms value is still inside the window
+        recorder.recordNanos(2_000_000);
+        assertEquals(50_000_000, recorder.maxNanos(), 50_000);
+        Thread.sleep(200); // more than the whole window later: both values have left it
+        recorder.recordNanos(1_000_000);
+        // HdrHistogram keeps 3 significant digits: 1 ms comes back within 1 us.
+        assertEquals(1_000_000, recorder.maxNanos(), 1_000);
+        assertEquals(1_000_000, recorder.valueAtQuantileNanos(0.5), 1_000);
+        assertEquals(3, recorder.count()); // the count is all-time
+    }
 }

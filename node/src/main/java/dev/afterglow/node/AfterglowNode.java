@@ -50,7 +50,10 @@ public final class AfterglowNode implements AutoCloseable {
 
     private final NodeConfig config;
     private final NodeClock clock;
-    private final EventLoopGroup ioGroup;
+    /** Sensors' TCP and UDP input: nothing else runs here, so a scrape or a subscriber never delays ingest. */
+    private final EventLoopGroup ingestGroup;
+    /** Subscribers and HTTP (metrics, settings, live view). */
+    private final EventLoopGroup serveGroup;
     private final EventLoopGroup pipelineGroup;
     private final Counters nodeCounters = new Counters();
     private final FramePublisher publisher;
@@ -67,7 +70,8 @@ public final class AfterglowNode implements AutoCloseable {
     private AfterglowNode(NodeConfig config, NodeClock clock) {
         this.config = config;
         this.clock = clock;
-        this.ioGroup = new MultiThreadIoEventLoopGroup(1, NioIoHandler.newFactory());
+        this.ingestGroup = new MultiThreadIoEventLoopGroup(1, NioIoHandler.newFactory());
+        this.serveGroup = new MultiThreadIoEventLoopGroup(1, NioIoHandler.newFactory());
         this.pipelineGroup = new DefaultEventLoopGroup(config.limits.pipelineThreads);
         this.publisher = new FramePublisher(clock);
         this.registry = new SensorRegistry(config, pipelineGroup, publisher, clock, nodeCounters);
@@ -97,7 +101,7 @@ public final class AfterglowNode implements AutoCloseable {
         int maxMessage = config.limits.maxMessageBytes;
         if (config.listen.ingestTcpPort >= 0) {
             tcpIngest = new ServerBootstrap()
-                    .group(ioGroup)
+                    .group(ingestGroup)
                     .channel(NioServerSocketChannel.class)
                     .childOption(ChannelOption.TCP_NODELAY, true)
                     .childHandler(new ChannelInitializer<SocketChannel>() {
@@ -112,7 +116,7 @@ public final class AfterglowNode implements AutoCloseable {
         }
         if (config.listen.ingestUdpPort >= 0) {
             udpIngest = new Bootstrap()
-                    .group(ioGroup)
+                    .group(ingestGroup)
                     .channel(NioDatagramChannel.class)
                     .option(ChannelOption.SO_RCVBUF, 8 << 20)
                     // Netty reads datagrams into 2048-byte buffers by default and cuts longer ones short.
@@ -128,7 +132,7 @@ public final class AfterglowNode implements AutoCloseable {
         if (config.listen.subscriberPort >= 0) {
             int high = config.limits.subscriberHighWaterBytes;
             subscriberServer = new ServerBootstrap()
-                    .group(ioGroup)
+                    .group(serveGroup)
                     .channel(NioServerSocketChannel.class)
                     .childOption(ChannelOption.TCP_NODELAY, true)
                     .childOption(ChannelOption.WRITE_BUFFER_WATER_MARK, new WriteBufferWaterMark(high / 2, high))
@@ -146,7 +150,7 @@ public final class AfterglowNode implements AutoCloseable {
             HttpEndpoints endpoints = new HttpEndpoints(meterRegistry, meters, registry, publisher, config.control, () -> ready);
             LiveSocketGate liveGate = new LiveSocketGate(liveViews);
             httpServer = new ServerBootstrap()
-                    .group(ioGroup)
+                    .group(serveGroup)
                     .channel(NioServerSocketChannel.class)
                     // Live view pages that fall behind skip frames instead of queueing them.
                     .childOption(ChannelOption.WRITE_BUFFER_WATER_MARK,
@@ -234,7 +238,8 @@ public final class AfterglowNode implements AutoCloseable {
         registry.close();
         pipelineGroup.shutdownGracefully(0, 2, TimeUnit.SECONDS).awaitUninterruptibly(5, TimeUnit.SECONDS);
         closeQuietly(subscriberServer);
-        ioGroup.shutdownGracefully(0, 2, TimeUnit.SECONDS).awaitUninterruptibly(5, TimeUnit.SECONDS);
+        ingestGroup.shutdownGracefully(0, 2, TimeUnit.SECONDS).awaitUninterruptibly(5, TimeUnit.SECONDS);
+        serveGroup.shutdownGracefully(0, 2, TimeUnit.SECONDS).awaitUninterruptibly(5, TimeUnit.SECONDS);
     }
 
     private static void closeQuietly(Channel c) {

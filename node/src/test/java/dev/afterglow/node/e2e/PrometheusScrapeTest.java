@@ -7,6 +7,8 @@ import com.fasterxml.jackson.databind.ObjectMapper;
 import dev.afterglow.filters.EventBatch;
 import dev.afterglow.node.AfterglowNode;
 import dev.afterglow.node.client.SensorClient;
+import dev.afterglow.node.client.SubscriberClient;
+import dev.afterglow.proto.v1.PixelFormat;
 import java.io.IOException;
 import java.net.ServerSocket;
 import java.net.URI;
@@ -46,7 +48,10 @@ class PrometheusScrapeTest {
         }
         List<EventBatch> packets = SceneEvents.packets(W, H, 30_000_000, 5_000, 3);
         HttpClient http = HttpClient.newBuilder().connectTimeout(Duration.ofSeconds(5)).build();
-        try (AfterglowNode node = AfterglowNode.start(HttpEndpointsTest.config("dock"))) {
+        // A subscriber, so frames are read out and the sensor-to-publish series has values.
+        try (AfterglowNode node = AfterglowNode.start(HttpEndpointsTest.config("dock"));
+                SubscriberClient sub = SubscriberClient.connect("127.0.0.1", node.subscriberPort(), "dock", 0,
+                        PixelFormat.PIXEL_FORMAT_GRAY8)) {
             Thread sender = new Thread(() -> {
                 try (SensorClient s = SensorClient.connect("127.0.0.1", node.ingestTcpPort(), "dock", W, H, false)) {
                     long start = System.nanoTime();
