@@ -21,7 +21,12 @@
 #   SURGE_SENSORS         sensors (1..4 with bench/node.yaml) [1]
 #   SURGE_SUBSCRIBERS     subscribers per sensor [4]
 #   SURGE_TRANSPORT       tcp or udp [tcp]
+#   NODE_JAVA_OPTS        the node's JVM options ["-Xmx256m"]
 #   BENCH_MVN_FLAGS       extra Maven flags, e.g. -o to stay offline
+#
+# The node's resident memory (VmRSS) is sampled every 5 s into OUT_DIR/node-rss.csv; machine.txt
+# gets its first-minute and last-minute range. A 10-minute soak at one rate:
+#   SKIP_JMH=1 SURGE_RATES=5M SURGE_STEP_SECONDS=600 bench/run-all.sh
 #
 # Run it on an otherwise idle machine: every number here is wall-clock time, and the node, the load
 # generator and JMH compete for the same cores. The whole default run takes about 20 minutes.
@@ -72,12 +77,24 @@ if [ "${SKIP_JMH:-0}" != 1 ]; then
 fi
 
 echo "== node (bench/node.yaml) and load generator"
-node_opts=()
+read -r -a node_opts <<< "${NODE_JAVA_OPTS:--Xmx256m}"
 if [ $jfr = 1 ]; then
   node_opts+=("-XX:StartFlightRecording=filename=$out/node.jfr,settings=profile,dumponexit=true")
 fi
 java ${node_opts[@]+"${node_opts[@]}"} -jar "$jar" serve --config "$repo/bench/node.yaml" > "$out/node.log" 2>&1 &
 node_pid=$!
+echo "node JVM options: ${node_opts[*]}" >> "$out/machine.txt"
+# Resident memory of the node every 5 s (kB), until it exits.
+(
+  echo "seconds,rss_kb"
+  start=$(date +%s)
+  while kill -0 "$node_pid" 2>/dev/null; do
+    rss=$(awk '/^VmRSS:/{print $2}' "/proc/$node_pid/status" 2>/dev/null || true)
+    [ -n "$rss" ] && echo "$(( $(date +%s) - start )),$rss"
+    sleep 5
+  done
+) > "$out/node-rss.csv" &
+rss_pid=$!
 stop_node() {
   if kill -0 "$node_pid" 2>/dev/null; then
     kill "$node_pid"
@@ -105,6 +122,17 @@ surge_status=${PIPESTATUS[0]}
 set -e
 stop_node
 trap - EXIT
+wait "$rss_pid" 2>/dev/null || true
+awk -F, 'NR > 1 { t[NR] = $1; r[NR] = $2; n = NR }
+  END {
+    if (n < 2) { print "node RSS: no samples"; exit }
+    last = t[n]; fmin = 1e12; fmax = 0; lmin = 1e12; lmax = 0
+    for (i = 2; i <= n; i++) {
+      if (t[i] <= 60) { if (r[i] < fmin) fmin = r[i]; if (r[i] > fmax) fmax = r[i] }
+      if (t[i] >= last - 60) { if (r[i] < lmin) lmin = r[i]; if (r[i] > lmax) lmax = r[i] }
+    }
+    printf "node RSS (MiB): first minute %.0f .. %.0f, last minute %.0f .. %.0f, over %d s (node-rss.csv)\n", fmin/1024, fmax/1024, lmin/1024, lmax/1024, last
+  }' "$out/node-rss.csv" >> "$out/machine.txt"
 echo "load average at end: $(cut -d' ' -f1-3 /proc/loadavg 2>/dev/null || echo unknown)" >> "$out/machine.txt"
 
 java -cp "$jar" "$repo/bench/BenchReport.java" "$out"
