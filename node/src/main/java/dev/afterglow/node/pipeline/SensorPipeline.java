@@ -34,11 +34,11 @@ import java.util.concurrent.atomic.AtomicInteger;
  *
  * <p>Packets are handed over from I/O threads through {@link #offerPacket}; at most
  * {@code maxPendingPackets} wait, beyond that new packets are shed (counted). On the pipeline
- * thread a packet whose newest event is older than the latency budget (sensor time mapped to host
- * time by {@link ClockMapper}) is shed whole, so the backlog drains at the cost of those events
- * and the delay never grows without bound. Every event offered is counted once by transport and
- * then lands in exactly one of: reached the chain, shed (queue or budget), or rejected with its
- * packet (malformed, UDP duplicate or late).
+ * thread a packet whose newest event is older than the latency budget, less the time recent packets
+ * took to process (sensor time mapped to host time by {@link ClockMapper}), is shed whole, so the
+ * backlog drains at the cost of those events and frames leave within the budget. Every event
+ * offered is counted once by transport and then lands in exactly one of: reached the chain, shed
+ * (queue or budget), or rejected with its packet (malformed, UDP duplicate or late).
  *
  * <p>Frames: at sensor times {@code T_k = floor(k · 10^6 / rate)} us. Events before T_k are applied,
  * the reconstruction is read out at T_k and published, then later events are applied. Frame times
@@ -87,6 +87,8 @@ public final class SensorPipeline {
     private volatile StageTimers stageTimers;
     private ToneMapper toneMapper;
     private long budgetUs;
+    /** Recent time to process one packet, frames included (a decaying maximum), kept free of the budget. */
+    private long headroomUs;
     private double rateHz;
 
     private boolean scheduleStarted;
@@ -294,7 +296,8 @@ public final class SensorPipeline {
         clockMapper.observe(arrivalUs, newest);
         lastPacketHostUs = arrivalUs;
         long nowUs = clock.monotonicNanos() / 1000;
-        if (nowUs - clockMapper.toHostUs(newest) > budgetUs) {
+        // Shed what could not be published within the budget: its age now plus the time processing takes.
+        if (nowUs - clockMapper.toHostUs(newest) > budgetUs - headroomUs) {
             counters.increment(NodeCounter.PACKETS_SHED_LATENCY);
             counters.add(NodeCounter.EVENTS_SHED_LATENCY, count);
             droppedSinceFrame += count;
@@ -315,9 +318,12 @@ public final class SensorPipeline {
         newestArrivalUs = arrivalUs;
         applyWithFrames(batch);
         // Once per packet: host arrival of the packet to its events applied (frames read out included).
-        long lag = clock.monotonicNanos() - arrivalUs * 1000;
+        long doneNanos = clock.monotonicNanos();
+        long lag = doneNanos - arrivalUs * 1000;
         arrivalToApplied.recordNanos(lag);
         lagNanos = lag;
+        long workUs = doneNanos / 1000 - nowUs;
+        headroomUs = Math.min(budgetUs / 2, Math.max(workUs, headroomUs - (headroomUs >> 4)));
     }
 
     private boolean acceptUdpSequence(long seq) {
