@@ -13,6 +13,8 @@ import java.net.Socket;
 
 /**
  * Subscribes to one sensor's frames over TCP and reads them one by one. Blocking; one thread.
+ * A read timeout ({@link #setTimeoutMillis}) may strike in the middle of a frame: what was read so
+ * far is kept, and the next {@link #next()} carries on from there.
  *
  * <pre>
  * try (SubscriberClient s = SubscriberClient.connect("127.0.0.1", 7303, "dock-cam", 10, PixelFormat.PIXEL_FORMAT_GRAY8)) {
@@ -21,8 +23,16 @@ import java.net.Socket;
  * </pre>
  */
 public final class SubscriberClient implements AutoCloseable {
+    /** Largest message accepted from the node; a longer length prefix means the stream is corrupt. */
+    public static final int MAX_MESSAGE_BYTES = 256 << 20;
+
     private final Socket socket;
     private final InputStream in;
+    // A message in progress, kept across read timeouts: the length prefix so far, then the body.
+    private int prefixValue;
+    private int prefixShift;
+    private byte[] body;
+    private int bodyFilled;
 
     private SubscriberClient(Socket socket) throws IOException {
         this.socket = socket;
@@ -65,10 +75,7 @@ public final class SubscriberClient implements AutoCloseable {
      * @throws java.io.EOFException if the node closed the connection
      */
     public IntensityFrame next() throws IOException {
-        Envelope e = Envelope.parseDelimitedFrom(in);
-        if (e == null) {
-            throw new java.io.EOFException("node closed the connection");
-        }
+        Envelope e = Envelope.parseFrom(readMessage());
         if (e.hasError()) {
             throw new RefusedException(e.getError().getCode(), e.getError().getMessage());
         }
@@ -76,6 +83,40 @@ public final class SubscriberClient implements AutoCloseable {
             throw new IOException("unexpected " + e.getBodyCase() + " from node");
         }
         return e.getIntensityFrame();
+    }
+
+    /** One length-prefixed message; a timeout leaves the progress in the fields for the next call. */
+    private byte[] readMessage() throws IOException {
+        while (body == null) {
+            int b = in.read();
+            if (b < 0) {
+                throw new java.io.EOFException(prefixShift == 0 ? "node closed the connection"
+                        : "node closed the connection inside a length prefix");
+            }
+            prefixValue |= (b & 0x7F) << prefixShift;
+            prefixShift += 7;
+            if ((b & 0x80) == 0) {
+                if (prefixValue < 0 || prefixValue > MAX_MESSAGE_BYTES) {
+                    throw new IOException("message length " + (prefixValue & 0xFFFFFFFFL) + " > " + MAX_MESSAGE_BYTES);
+                }
+                body = new byte[prefixValue];
+                bodyFilled = 0;
+                prefixValue = 0;
+                prefixShift = 0;
+            } else if (prefixShift > 28) {
+                throw new IOException("malformed length prefix");
+            }
+        }
+        while (bodyFilled < body.length) {
+            int n = in.read(body, bodyFilled, body.length - bodyFilled);
+            if (n < 0) {
+                throw new java.io.EOFException("node closed the connection inside a message");
+            }
+            bodyFilled += n;
+        }
+        byte[] message = body;
+        body = null;
+        return message;
     }
 
     @Override
