@@ -34,9 +34,9 @@ import java.util.concurrent.atomic.AtomicInteger;
  *
  * <p>Packets are handed over from I/O threads through {@link #offerPacket}; at most
  * {@code maxPendingPackets} wait, beyond that new packets are shed (counted). On the pipeline
- * thread a packet whose newest event is older than the latency budget, less the time recent packets
- * took to process (sensor time mapped to host time by {@link ClockMapper}), is shed whole, so the
- * backlog drains at the cost of those events and frames leave within the budget. Every event
+ * thread a packet whose newest event is older than the latency budget, less twice the mean time a
+ * packet takes to process (sensor time mapped to host time by {@link ClockMapper}), is shed whole,
+ * so the backlog drains at the cost of those events and frames leave within the budget. Every event
  * offered is counted once by transport and then lands in exactly one of: reached the chain, shed
  * (queue or budget), or rejected with its packet (malformed, UDP duplicate or late).
  *
@@ -87,8 +87,12 @@ public final class SensorPipeline {
     private volatile StageTimers stageTimers;
     private ToneMapper toneMapper;
     private long budgetUs;
-    /** Recent time to process one packet, frames included (a decaying maximum), kept free of the budget. */
-    private long headroomUs;
+    /**
+     * Mean time to process one packet, frames included (moving average over ~16 packets); twice it
+     * is kept free of the budget. An average, so one packet held up by a pause does not shed the
+     * packets queued behind it.
+     */
+    private long workMeanUs;
     private double rateHz;
 
     private boolean scheduleStarted;
@@ -297,7 +301,7 @@ public final class SensorPipeline {
         lastPacketHostUs = arrivalUs;
         long nowUs = clock.monotonicNanos() / 1000;
         // Shed what could not be published within the budget: its age now plus the time processing takes.
-        if (nowUs - clockMapper.toHostUs(newest) > budgetUs - headroomUs) {
+        if (nowUs - clockMapper.toHostUs(newest) > budgetUs - Math.min(budgetUs / 2, 2 * workMeanUs)) {
             counters.increment(NodeCounter.PACKETS_SHED_LATENCY);
             counters.add(NodeCounter.EVENTS_SHED_LATENCY, count);
             droppedSinceFrame += count;
@@ -323,7 +327,7 @@ public final class SensorPipeline {
         arrivalToApplied.recordNanos(lag);
         lagNanos = lag;
         long workUs = doneNanos / 1000 - nowUs;
-        headroomUs = Math.min(budgetUs / 2, Math.max(workUs, headroomUs - (headroomUs >> 4)));
+        workMeanUs += (workUs - workMeanUs) / 16;
     }
 
     private boolean acceptUdpSequence(long seq) {
