@@ -116,7 +116,7 @@ final class ContactSheet {
         List<String> noteLines = new ArrayList<>();
         int noteScale = 2;
         for (String note : notes) {
-            noteLines.addAll(wrap(note.toUpperCase(Locale.ROOT), (sheetWidth - 2 * MARGIN) / (TinyFont.ADVANCE * noteScale)));
+            noteLines.addAll(TinyFont.wrap(note.toUpperCase(Locale.ROOT), (sheetWidth - 2 * MARGIN) / (TinyFont.ADVANCE * noteScale)));
         }
         int sheetHeight = 2 * MARGIN + headerHeight + rows.size() * rowHeight + noteLines.size() * TinyFont.LINE * noteScale;
         byte[] px = new byte[sheetWidth * sheetHeight];
@@ -165,24 +165,5 @@ final class ContactSheet {
         if (!ImageIO.write(image, "png", file.toFile())) {
             throw new IOException("no PNG writer available");
         }
-    }
-
-    static List<String> wrap(String text, int maxChars) {
-        List<String> lines = new ArrayList<>();
-        StringBuilder line = new StringBuilder();
-        for (String word : text.split(" ")) {
-            if (line.length() > 0 && line.length() + 1 + word.length() > maxChars) {
-                lines.add(line.toString());
-                line.setLength(0);
-            }
-            if (line.length() > 0) {
-                line.append(' ');
-            }
-            line.append(word);
-        }
-        if (line.length() > 0) {
-            lines.add(line.toString());
-        }
-        return lines;
     }
 }

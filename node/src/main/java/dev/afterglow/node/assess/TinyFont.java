@@ -1,6 +1,8 @@
 package dev.afterglow.node.assess;
 
+import java.util.ArrayList;
 import java.util.HashMap;
+import java.util.List;
 import java.util.Map;
 
 /**
@@ -138,5 +140,25 @@ public final class TinyFont {
             }
             cx += ADVANCE * scale;
         }
+    }
+
+    /** Splits {@code text} at spaces into lines of at most {@code maxChars} (longer words stay whole). */
+    public static List<String> wrap(String text, int maxChars) {
+        List<String> lines = new ArrayList<>();
+        StringBuilder line = new StringBuilder();
+        for (String word : text.split(" ")) {
+            if (line.length() > 0 && line.length() + 1 + word.length() > maxChars) {
+                lines.add(line.toString());
+                line.setLength(0);
+            }
+            if (line.length() > 0) {
+                line.append(' ');
+            }
+            line.append(word);
+        }
+        if (line.length() > 0) {
+            lines.add(line.toString());
+        }
+        return lines;
     }
 }

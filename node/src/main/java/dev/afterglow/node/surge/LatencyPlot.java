@@ -52,7 +52,7 @@ public final class LatencyPlot {
         List<String[]> texts = new ArrayList<>(); // x, y, text, scale
         texts.add(new String[] {"10", "10", "FRAME LATENCY ON THE GENERATOR'S CLOCK VS OFFERED RATE", "2"});
         int lineY = 30;
-        for (String line : wrap(subtitle.toUpperCase(Locale.ROOT), (WIDTH - 20) / TinyFont.ADVANCE)) {
+        for (String line : TinyFont.wrap(subtitle.toUpperCase(Locale.ROOT), (WIDTH - 20) / TinyFont.ADVANCE)) {
             if (lineY > TOP - 26) {
                 break; // no room for more; the CSV and the report carry the full description
             }
@@ -173,26 +173,6 @@ public final class LatencyPlot {
         if (!ImageIO.write(image, "png", file.toFile())) {
             throw new IOException("no PNG writer available");
         }
-    }
-
-    /** Splits {@code text} at spaces into lines of at most {@code maxChars} (longer words stay whole). */
-    static List<String> wrap(String text, int maxChars) {
-        List<String> lines = new ArrayList<>();
-        StringBuilder line = new StringBuilder();
-        for (String word : text.split(" ")) {
-            if (line.length() > 0 && line.length() + 1 + word.length() > maxChars) {
-                lines.add(line.toString());
-                line.setLength(0);
-            }
-            if (line.length() > 0) {
-                line.append(' ');
-            }
-            line.append(word);
-        }
-        if (line.length() > 0) {
-            lines.add(line.toString());
-        }
-        return lines;
     }
 
     private static int yPixel(double v, int decadeLo, int decadeHi, int plotH) {

@@ -139,6 +139,6 @@ class AssessCommandTest {
         for (char c : all.toCharArray()) {
             assertTrue(TinyFont.covers(c), "no glyph for '" + c + "'");
         }
-        assertEquals(List.of("ONE TWO", "THREE"), ContactSheet.wrap("ONE TWO THREE", 8));
+        assertEquals(List.of("ONE TWO", "THREE"), TinyFont.wrap("ONE TWO THREE", 8));
     }
 }
