@@ -95,6 +95,8 @@ class HttpEndpointsTest {
             sub.next();
             var counters = node.sensors().get("gate").counters();
             StreamingEndToEndTest.waitFor(() -> counters.get(NodeCounter.EVENTS_RECEIVED) == eventsSent);
+            // The last packet's latency values are recorded after its events are counted.
+            StreamingEndToEndTest.waitFor(() -> node.sensors().get("gate").arrivalToAppliedLatency().count() == packets.size());
 
             HttpResponse<String> metrics = get(http, port, "/metrics");
             assertEquals(200, metrics.statusCode());

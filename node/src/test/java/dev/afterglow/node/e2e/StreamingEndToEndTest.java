@@ -106,17 +106,17 @@ class StreamingEndToEndTest {
             assertEquals(0, counters.get(NodeCounter.PACKETS_SHED_QUEUE));
             assertEquals(0, counters.get(NodeCounter.EVENTS_LATE));
             long sent = packets.stream().mapToLong(b -> b.size).sum();
+            // The last packets may still be on their way through the pipeline after the last frame.
+            waitFor(() -> counters.get(NodeCounter.EVENTS_RECEIVED) == sent);
             if (udp) {
                 assertEquals(0, counters.get(NodeCounter.UDP_LOST));
                 assertTrue(counters.get(NodeCounter.PACKETS_UDP) >= packets.size());
                 // Every event offered lands in exactly one outcome (loopback may duplicate nothing; rejected covers it if it did).
                 assertEquals(counters.get(NodeCounter.EVENTS_UDP), counters.get(NodeCounter.EVENTS_RECEIVED)
                         + counters.get(NodeCounter.EVENTS_REJECTED));
-                assertEquals(sent, counters.get(NodeCounter.EVENTS_RECEIVED));
             } else {
                 assertEquals(packets.size(), counters.get(NodeCounter.PACKETS_TCP));
                 assertEquals(sent, counters.get(NodeCounter.EVENTS_TCP));
-                assertEquals(sent, counters.get(NodeCounter.EVENTS_RECEIVED));
                 assertEquals(0, counters.get(NodeCounter.EVENTS_UDP));
             }
             assertEquals(0, counters.get(NodeCounter.FRAMES_UNREAD));
