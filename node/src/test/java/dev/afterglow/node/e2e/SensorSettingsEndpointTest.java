@@ -114,6 +114,7 @@ class SensorSettingsEndpointTest {
             SensorPipeline pipeline = node.sensors().get("belt");
             stream(sensor, first);
             StreamingEndToEndTest.waitFor(() -> pipeline.counters().get(NodeCounter.EVENTS_RECEIVED) == firstEvents);
+            pipeline.loop().submit(() -> { }).get(); // the pipeline has finished the last packet and its frames
             long before = pipeline.counters().get(NodeCounter.FRAMES_PUBLISHED);
             long lastBefore = 0;
             for (long i = 0; i < before; i++) {
