@@ -59,24 +59,9 @@ class BackgroundActivityFilterTest {
     }
 
     static EventLog[] runBoth(RandomEventStream s, int windowUs, int support) {
-        BackgroundActivityFilter fast = new BackgroundActivityFilter(s.width, s.height, windowUs, support);
-        NaiveBackgroundActivity naive = new NaiveBackgroundActivity(s.width, s.height, windowUs, support);
-        EventLog got = new EventLog();
-        EventLog want = new EventLog();
-        EventBatch batch = s.newBatch();
-        for (int b = 0; b < s.batches; b++) {
-            s.fill(b, batch);
-            fast.process(batch);
-            got.addAll(batch);
-            for (int i = s.batchFrom(b); i < s.batchTo(b); i++) {
-                if (naive.pass(s.x[i], s.y[i], s.t[i])) {
-                    want.add(s, i);
-                }
-            }
-        }
-        assertEquals(s.size, fast.counters().eventsIn(), "events in");
-        assertEquals(want.size(), fast.counters().eventsOut(), "events out");
-        return new EventLog[] {want, got};
+        return StageAgainstReference.run(s,
+                new BackgroundActivityFilter(s.width, s.height, windowUs, support),
+                new NaiveBackgroundActivity(s.width, s.height, windowUs, support)::pass);
     }
 
     @ParameterizedTest(name = "{0}x{1} seed {2} window {3}us support {4}")

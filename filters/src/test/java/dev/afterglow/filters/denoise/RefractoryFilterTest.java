@@ -3,7 +3,6 @@ package dev.afterglow.filters.denoise;
 import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
-import dev.afterglow.filters.EventBatch;
 import dev.afterglow.filters.EventLog;
 import dev.afterglow.filters.RandomEventStream;
 import org.junit.jupiter.api.Test;
@@ -43,24 +42,9 @@ class RefractoryFilterTest {
     }
 
     static EventLog[] runBoth(RandomEventStream s, int periodUs) {
-        RefractoryFilter fast = new RefractoryFilter(s.width, s.height, periodUs);
-        NaiveRefractory naive = new NaiveRefractory(s.width, s.height, periodUs);
-        EventLog got = new EventLog();
-        EventLog want = new EventLog();
-        EventBatch batch = s.newBatch();
-        for (int b = 0; b < s.batches; b++) {
-            s.fill(b, batch);
-            fast.process(batch);
-            got.addAll(batch);
-            for (int i = s.batchFrom(b); i < s.batchTo(b); i++) {
-                if (naive.pass(s.x[i], s.y[i], s.t[i])) {
-                    want.add(s, i);
-                }
-            }
-        }
-        assertEquals(s.size, fast.counters().eventsIn(), "events in");
-        assertEquals(want.size(), fast.counters().eventsOut(), "events out");
-        return new EventLog[] {want, got};
+        return StageAgainstReference.run(s,
+                new RefractoryFilter(s.width, s.height, periodUs),
+                new NaiveRefractory(s.width, s.height, periodUs)::pass);
     }
 
     @ParameterizedTest(name = "{0}x{1} seed {2} period {3}us")
