@@ -31,4 +31,12 @@ final class Checks {
             throw new ConfigException(setting + " is required");
         }
     }
+
+    /** A shared secret: present and at least 16 characters (shorter ones are guessable). */
+    static void secret(String setting, String value) {
+        present(setting, value);
+        if (value.strip().length() < 16) {
+            throw new ConfigException(setting + " is shorter than 16 characters");
+        }
+    }
 }

@@ -45,6 +45,10 @@ public final class NodeConfig {
     public LimitsConfig limits = new LimitsConfig();
     /** Run-time changes over HTTP; off by default. */
     public ControlConfig control = new ControlConfig();
+    /** TLS for the TCP listeners; off by default. */
+    public TlsConfig tls = new TlsConfig();
+    /** Who may connect (duplicate sensors, subscriber tokens, web origins). */
+    public AccessConfig access = new AccessConfig();
     /** Whether a sensor not listed under {@code sensors} may connect (it gets {@code sensor-defaults}). */
     public boolean acceptUnlistedSensors = true;
     /** Settings for unlisted sensors (id and geometry come from their hello). */
@@ -93,12 +97,15 @@ public final class NodeConfig {
 
     /** Checks every setting; throws {@link ConfigException} naming the first bad one. */
     public NodeConfig validate() {
-        if (listen == null || limits == null || control == null || sensorDefaults == null || sensors == null) {
-            throw new ConfigException("listen, limits, control, sensor-defaults and sensors must not be null");
+        if (listen == null || limits == null || control == null || tls == null || access == null
+                || sensorDefaults == null || sensors == null) {
+            throw new ConfigException("listen, limits, control, tls, access, sensor-defaults and sensors must not be null");
         }
         listen.validate();
         limits.validate();
         control.validate(listen);
+        tls.validate();
+        access.validate();
         sensorDefaults.validate("sensor-defaults", false);
         Set<String> ids = new HashSet<>();
         for (int i = 0; i < sensors.size(); i++) {
