@@ -168,7 +168,8 @@ class PythonReaderTest {
             case EVENTS -> "events";
             case SENSOR_FRAME -> "sensor_frame";
             case INTENSITY_FRAME -> "intensity_frame";
-            case SUBSCRIBE -> "subscribe";
+            case ERROR -> "error";
+            case SEALED -> "sealed";
             case ERROR -> "error";
             case BODY_NOT_SET -> "None";
         };
