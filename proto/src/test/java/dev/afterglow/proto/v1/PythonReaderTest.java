@@ -168,7 +168,7 @@ class PythonReaderTest {
             case EVENTS -> "events";
             case SENSOR_FRAME -> "sensor_frame";
             case INTENSITY_FRAME -> "intensity_frame";
-            case ERROR -> "error";
+            case SUBSCRIBE -> "subscribe";
             case SEALED -> "sealed";
             case ERROR -> "error";
             case BODY_NOT_SET -> "None";
