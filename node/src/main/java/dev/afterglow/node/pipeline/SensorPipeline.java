@@ -334,7 +334,11 @@ public final class SensorPipeline {
 
     /** Runs {@code task} on the pipeline thread, guarded ({@link #guarded}). */
     private void execute(Runnable task) {
-        loop.execute(() -> guarded(task));
+        try {
+            loop.execute(() -> guarded(task));
+        } catch (java.util.concurrent.RejectedExecutionException e) {
+            // the node is shutting down: the pipeline thread takes no more work
+        }
     }
 
     /**
