@@ -113,7 +113,9 @@ public final class AfterglowNode implements AutoCloseable {
         String address = config.listen.address;
         int maxMessage = config.limits.maxMessageBytes;
         LimitsConfig limits = config.limits;
-        ChainWarmup.run(config); // compile the hot paths before the first sensor's packets count against its budget
+        if (config.warmUp) {
+            ChainWarmup.run(config); // compile the hot paths before the first sensor's packets count against its budget
+        }
         if (config.listen.ingestTcpPort >= 0) {
             ConnectionLimiter limiter = new ConnectionLimiter("ingest", limits.maxConnectionsPerAddress, nodeCounters,
                     ch -> ErrorReplies.sendAndClose(ch, "limit", "too many connections from this address"));

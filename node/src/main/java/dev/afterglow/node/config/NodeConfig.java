@@ -54,6 +54,11 @@ public final class NodeConfig {
     public TlsConfig tls = new TlsConfig();
     /** Who may connect (duplicate sensors, subscriber tokens, web origins). */
     public AccessConfig access = new AccessConfig();
+    /**
+     * Whether the node runs its configured chains over a generated stream for about a second
+     * before it accepts sensors, so the JIT has compiled them when the first packets arrive.
+     */
+    public boolean warmUp = true;
     /** Whether a sensor not listed under {@code sensors} may connect (it gets {@code sensor-defaults}). */
     public boolean acceptUnlistedSensors = true;
     /** Settings for unlisted sensors (id and geometry come from their hello). */

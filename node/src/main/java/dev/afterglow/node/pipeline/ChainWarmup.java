@@ -5,9 +5,6 @@ import dev.afterglow.filters.chain.Chain;
 import dev.afterglow.filters.codec.DecodeResult;
 import dev.afterglow.filters.codec.EventPacketCodec;
 import dev.afterglow.filters.readout.ToneMapper;
-import dev.afterglow.filters.synth.SceneKind;
-import dev.afterglow.filters.synth.SensorConfig;
-import dev.afterglow.filters.synth.SyntheticSensor;
 import dev.afterglow.node.config.NodeConfig;
 import dev.afterglow.node.config.ToneMapText;
 import java.nio.ByteBuffer;
@@ -15,21 +12,23 @@ import java.util.ArrayList;
 import java.util.LinkedHashSet;
 import java.util.List;
 import java.util.Set;
+import java.util.SplittableRandom;
 
 /**
- * Runs every configured chain (sensor defaults and listed sensors) over a short synthetic scene
+ * Runs every configured chain (sensor defaults and listed sensors) over a short generated stream
  * before the node accepts sensors, so the JIT has compiled decoding, the stages, readout and the
  * tone map by the time a real sensor's first packets arrive; otherwise its first few hundred
  * milliseconds are processed by the interpreter and shed against the latency budget. Takes a
- * bounded time ({@value #BUDGET_MS} ms at most) on the calling thread.
+ * bounded time (about {@value #BUDGET_MS} ms) on the calling thread.
  */
 public final class ChainWarmup {
-    static final long BUDGET_MS = 2_000;
+    static final long BUDGET_MS = 800;
     private static final int WIDTH = 160;
     private static final int HEIGHT = 120;
-    private static final long SCENE_US = 1_000_000;
+    private static final long SCENE_US = 300_000;
     private static final int PACKET_US = 1_000;
-    private static final int ROUNDS = 12;
+    private static final int ROUNDS = 40;
+    private static final int EVENTS_PER_PACKET = 1_000;
 
     private ChainWarmup() {
     }
@@ -44,20 +43,23 @@ public final class ChainWarmup {
             chains.add(s.chain);
             toneMaps.add(s.toneMap);
         }
+        long deadline = System.nanoTime() + BUDGET_MS * 1_000_000;
         List<byte[]> packets = new ArrayList<>();
         List<Long> bases = new ArrayList<>();
-        SyntheticSensor sensor = new SyntheticSensor(SceneKind.byLabel("parcel-line").create(WIDTH, HEIGHT, 1),
-                SensorConfig.builder(WIDTH, HEIGHT).seed(1).build());
-        EventBatch step = new EventBatch(1 << 16);
-        for (long t = PACKET_US; t <= SCENE_US; t += PACKET_US) {
-            step.reset(t - PACKET_US);
-            sensor.step(t, step);
-            if (step.size > 0) {
-                packets.add(EventPacketCodec.encode(step));
-                bases.add(step.timeBaseUs);
+        SplittableRandom random = new SplittableRandom(1);
+        EventBatch step = new EventBatch(EVENTS_PER_PACKET);
+        for (long t = 0; t < SCENE_US; t += PACKET_US) {
+            // An edge sweeping across the image (correlated events) plus uniform noise.
+            step.reset(t);
+            int edge = (int) (t * WIDTH / SCENE_US);
+            for (int k = 0; k < EVENTS_PER_PACKET; k++) {
+                boolean noise = k % 5 == 0;
+                int x = noise ? random.nextInt(WIDTH) : Math.min(WIDTH - 1, edge + random.nextInt(3));
+                step.add(x, random.nextInt(HEIGHT), t + (long) k * PACKET_US / EVENTS_PER_PACKET, k % 2 == 0 ? 1 : -1);
             }
+            packets.add(EventPacketCodec.encode(step));
+            bases.add(t);
         }
-        long deadline = System.nanoTime() + BUDGET_MS * 1_000_000;
         EventPacketCodec codec = new EventPacketCodec(WIDTH, HEIGHT);
         DecodeResult result = new DecodeResult();
         EventBatch batch = new EventBatch(1 << 16);
