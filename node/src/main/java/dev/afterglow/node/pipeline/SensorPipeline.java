@@ -333,7 +333,7 @@ public final class SensorPipeline {
     }
 
     /** Runs {@code task} on the pipeline thread, guarded ({@link #guarded}). */
-    private void execute(Runnable task) {
+    void execute(Runnable task) {
         try {
             loop.execute(() -> guarded(task));
         } catch (java.util.concurrent.RejectedExecutionException e) {
