@@ -45,7 +45,7 @@ public enum NodeCounter {
     GEOMETRY_MISMATCH(Scope.NODE, "afterglow.ingest.geometry.mismatch", "Hellos or frames whose geometry differs from the sensor's"),
     SUBSCRIBERS_REJECTED(Scope.NODE, "afterglow.subscribers.rejected", "Subscriber connections refused (bad request or limit)"),
     SUBSCRIBER_FAILURES(Scope.NODE, "afterglow.subscriber.failures", "Unexpected errors while serving one subscriber; that subscriber was dropped"),
-    SUBSCRIBERS_DROPPED(Scope.NODE, "afterglow.subscribers.dropped", "Subscribers disconnected because their connection stayed unwritable past the stall timeout"),
+    SUBSCRIBERS_DROPPED(Scope.NODE, "afterglow.subscribers.dropped", "Subscribers disconnected for not reading (stall timeout, or frame buffer budget)"),
     AUTH_REFUSED(Scope.NODE, "afterglow.auth.refused", "Hellos or subscriptions refused for a wrong or missing token"),
     UDP_REFUSED(Scope.NODE, "afterglow.ingest.udp.refused", "Datagrams refused: bad seal, unsealed for a sensor with a token, or from a source not allowed"),
     DUPLICATE_SENSOR(Scope.NODE, "afterglow.ingest.duplicate.sensor", "Hellos for a sensor that is already connected, refused"),
