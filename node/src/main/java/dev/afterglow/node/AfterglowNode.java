@@ -14,6 +14,8 @@ import dev.afterglow.node.publish.SubscriberHandler;
 import dev.afterglow.node.stats.Counters;
 import dev.afterglow.node.stats.NodeCounter;
 import dev.afterglow.node.stats.NodeMeters;
+import dev.afterglow.node.tls.NodeTls;
+import dev.afterglow.node.tls.TlsListener;
 import dev.afterglow.node.wire.BoundedVarintFrameDecoder;
 import io.netty.bootstrap.Bootstrap;
 import io.netty.bootstrap.ServerBootstrap;
@@ -65,6 +67,8 @@ public final class AfterglowNode implements AutoCloseable {
     private final PrometheusMeterRegistry meterRegistry = new PrometheusMeterRegistry(PrometheusConfig.DEFAULT);
     private final NodeMeters meters;
     private final LiveViews liveViews;
+    /** TLS on the TCP listeners named in {@code tls.listeners} (nothing when TLS is off). */
+    private final NodeTls tls;
     private volatile boolean ready;
 
     private AfterglowNode(NodeConfig config, NodeClock clock) {
@@ -77,6 +81,7 @@ public final class AfterglowNode implements AutoCloseable {
         this.registry = new SensorRegistry(config, pipelineGroup, publisher, clock, nodeCounters);
         this.meters = new NodeMeters(meterRegistry, registry, publisher, nodeCounters);
         this.liveViews = new LiveViews(registry, clock);
+        this.tls = NodeTls.of(config.tls, nodeCounters);
     }
 
     /** Starts a node with the system clock. */
@@ -107,6 +112,7 @@ public final class AfterglowNode implements AutoCloseable {
                     .childHandler(new ChannelInitializer<SocketChannel>() {
                         @Override
                         protected void initChannel(SocketChannel ch) {
+                            tls.addTo(ch, TlsListener.INGEST);
                             ch.pipeline().addLast(
                                     new BoundedVarintFrameDecoder(maxMessage, () -> nodeCounters.increment(NodeCounter.STREAMS_TRUNCATED)),
                                     new TcpIngestHandler(registry, clock));
@@ -139,6 +145,7 @@ public final class AfterglowNode implements AutoCloseable {
                     .childHandler(new ChannelInitializer<SocketChannel>() {
                         @Override
                         protected void initChannel(SocketChannel ch) {
+                            tls.addTo(ch, TlsListener.SUBSCRIBERS);
                             ch.pipeline().addLast(
                                     new BoundedVarintFrameDecoder(SUBSCRIBE_MAX_BYTES, () -> { }),
                                     new SubscriberHandler(registry, publisher, config.limits.maxSubscribers));
@@ -158,6 +165,7 @@ public final class AfterglowNode implements AutoCloseable {
                     .childHandler(new ChannelInitializer<SocketChannel>() {
                         @Override
                         protected void initChannel(SocketChannel ch) {
+                            tls.addTo(ch, TlsListener.HTTP);
                             ch.pipeline().addLast(new HttpServerCodec(), new HttpObjectAggregator(64 << 10), liveGate,
                                     new WebSocketServerProtocolHandler(LiveSocketGate.protocolConfig()),
                                     new LiveSocketHandler(liveViews), endpoints);

@@ -11,12 +11,11 @@ import com.google.protobuf.UnsafeByteOperations;
 import java.io.BufferedOutputStream;
 import java.io.IOException;
 import java.io.OutputStream;
-import java.net.InetSocketAddress;
 import java.net.Socket;
 
 /**
  * Streams one sensor's events and frames to a node over TCP: a hello, then delimited envelopes.
- * Blocking; one thread at a time.
+ * Blocking; one thread at a time. With {@link ClientTls} the connection uses TLS.
  *
  * <pre>
  * try (SensorClient c = SensorClient.connect("127.0.0.1", 7301, "dock-cam", 640, 480, false)) {
@@ -42,9 +41,13 @@ public final class SensorClient implements AutoCloseable {
     /** Connects and sends the hello. */
     public static SensorClient connect(String host, int port, String sensorId, int width, int height, boolean sendsFrames)
             throws IOException {
-        Socket s = new Socket();
-        s.setTcpNoDelay(true);
-        s.connect(new InetSocketAddress(host, port), 5_000);
+        return connect(host, port, sensorId, width, height, sendsFrames, null);
+    }
+
+    /** Connects (over TLS unless {@code tls} is null) and sends the hello. */
+    public static SensorClient connect(String host, int port, String sensorId, int width, int height, boolean sendsFrames,
+            ClientTls tls) throws IOException {
+        Socket s = ClientTls.open(host, port, tls);
         SensorClient c = new SensorClient(s, sensorId);
         c.send(Envelope.newBuilder().setSchemaVersion(SCHEMA_VERSION).setHello(SensorHello.newBuilder()
                 .setSensorId(sensorId).setWidth(width).setHeight(height).setSendsFrames(sendsFrames)

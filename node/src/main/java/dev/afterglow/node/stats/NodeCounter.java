@@ -38,7 +38,8 @@ public enum NodeCounter {
     UNKNOWN_SENSOR(Scope.NODE, "afterglow.ingest.unknown.sensor", "Messages or connections for a sensor the node does not accept"),
     GEOMETRY_MISMATCH(Scope.NODE, "afterglow.ingest.geometry.mismatch", "Hellos or frames whose geometry differs from the sensor's"),
     SUBSCRIBERS_REJECTED(Scope.NODE, "afterglow.subscribers.rejected", "Subscriber connections refused (bad request or limit)"),
-    INTERNAL_ERRORS(Scope.NODE, "afterglow.internal.errors", "Unexpected exceptions caught by a handler (a bug; the loop keeps running)");
+    INTERNAL_ERRORS(Scope.NODE, "afterglow.internal.errors", "Unexpected exceptions caught by a handler (a bug; the loop keeps running)"),
+    TLS_HANDSHAKE_FAILURES(Scope.NODE, "afterglow.tls.handshake.failures", "TLS handshakes that failed (not TLS, timeout, untrusted or missing client certificate, client aborted); connection closed");
 
     /** Where a counter lives. */
     public enum Scope {
