@@ -111,7 +111,11 @@ def main():
     env.subscribe.sensor_id = args.sensor
     env.subscribe.rate_hz = args.rate
     env.subscribe.format = pb.PIXEL_FORMAT_LOG_F32 if args.format == "log-f32" else pb.PIXEL_FORMAT_GRAY8
-    write_envelope(sock, env)
+    try:
+        write_envelope(sock, env)
+    except ssl.SSLError as e:
+        print(f"TLS error: {e}", file=sys.stderr)
+        return 3
     f = sock.makefile("rb")
     received = 0
     while args.count == 0 or received < args.count:

@@ -9,14 +9,18 @@ import java.nio.file.Path;
 import java.security.GeneralSecurityException;
 import java.security.KeyStore;
 import java.security.PrivateKey;
+import java.security.Principal;
 import java.security.cert.X509Certificate;
+import java.util.Arrays;
 import java.util.List;
-import javax.net.ssl.KeyManagerFactory;
+import javax.net.ssl.KeyManager;
 import javax.net.ssl.SSLContext;
 import javax.net.ssl.SSLHandshakeException;
 import javax.net.ssl.SSLParameters;
 import javax.net.ssl.SSLSocket;
+import javax.net.ssl.SSLEngine;
 import javax.net.ssl.TrustManagerFactory;
+import javax.net.ssl.X509ExtendedKeyManager;
 
 /**
  * TLS settings for the Java clients: the CA certificates (PEM) the node's certificate must chain to,
@@ -37,8 +41,6 @@ import javax.net.ssl.TrustManagerFactory;
 public final class ClientTls {
     private static final int CONNECT_TIMEOUT_MS = 5_000;
     private static final int HANDSHAKE_TIMEOUT_MS = 10_000;
-    // Protects only an in-memory key store that never leaves this object.
-    private static final char[] IN_MEMORY = "in-memory".toCharArray();
 
     private final List<X509Certificate> trusted;
     private final List<X509Certificate> clientChain;
@@ -120,20 +122,68 @@ public final class ClientTls {
             }
             TrustManagerFactory tmf = TrustManagerFactory.getInstance(TrustManagerFactory.getDefaultAlgorithm());
             tmf.init(trust);
-            KeyManagerFactory kmf = null;
-            if (key != null) {
-                KeyStore own = KeyStore.getInstance("PKCS12");
-                own.load(null, null);
-                own.setKeyEntry("client", key, IN_MEMORY, chain.toArray(X509Certificate[]::new));
-                kmf = KeyManagerFactory.getInstance(KeyManagerFactory.getDefaultAlgorithm());
-                kmf.init(own, IN_MEMORY);
-            }
+            KeyManager[] own = key == null ? null : new KeyManager[] {new OwnCertificate(chain.toArray(X509Certificate[]::new), key)};
             SSLContext c = SSLContext.getInstance("TLS");
-            c.init(kmf == null ? null : kmf.getKeyManagers(), tmf.getTrustManagers(), null);
+            c.init(own, tmf.getTrustManagers(), null);
             return c;
         } catch (GeneralSecurityException | IOException e) {
             // e.g. a key that does not belong to the certificate; the message names no key material
             throw new IllegalArgumentException("cannot set up TLS: " + e.getMessage(), e);
+        }
+    }
+
+    /**
+     * Presents the configured certificate whenever its key type is asked for, whichever CAs the node
+     * names in its request: the JDK's own key managers send nothing when the issuer is not named,
+     * which would hide a wrong certificate behind "no certificate" in the node's log.
+     */
+    private static final class OwnCertificate extends X509ExtendedKeyManager {
+        private static final String ALIAS = "client";
+        private final X509Certificate[] chain;
+        private final PrivateKey key;
+
+        OwnCertificate(X509Certificate[] chain, PrivateKey key) {
+            this.chain = chain;
+            this.key = key;
+        }
+
+        private String alias(String[] keyTypes) {
+            return keyTypes != null && Arrays.asList(keyTypes).contains(key.getAlgorithm()) ? ALIAS : null;
+        }
+
+        @Override
+        public String chooseClientAlias(String[] keyTypes, Principal[] issuers, Socket socket) {
+            return alias(keyTypes);
+        }
+
+        @Override
+        public String chooseEngineClientAlias(String[] keyTypes, Principal[] issuers, SSLEngine engine) {
+            return alias(keyTypes);
+        }
+
+        @Override
+        public String[] getClientAliases(String keyType, Principal[] issuers) {
+            return key.getAlgorithm().equals(keyType) ? new String[] {ALIAS} : null;
+        }
+
+        @Override
+        public String[] getServerAliases(String keyType, Principal[] issuers) {
+            return null;
+        }
+
+        @Override
+        public String chooseServerAlias(String keyType, Principal[] issuers, Socket socket) {
+            return null;
+        }
+
+        @Override
+        public X509Certificate[] getCertificateChain(String alias) {
+            return ALIAS.equals(alias) ? chain.clone() : null;
+        }
+
+        @Override
+        public PrivateKey getPrivateKey(String alias) {
+            return ALIAS.equals(alias) ? key : null;
         }
     }
 }

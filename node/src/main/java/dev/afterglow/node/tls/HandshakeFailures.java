@@ -28,19 +28,24 @@ final class HandshakeFailures {
         int before = loggedKinds.getAndUpdate(v -> v | bit);
         if ((before & bit) == 0) {
             warn.accept("TLS handshake failed on the " + listener.configName() + " listener from " + remote + ": "
-                    + kind.description() + " [" + summary(cause) + "]; further failures of this kind are only counted"
+                    + kind.description() + " [" + summary(kind, cause) + "]; further failures of this kind are only counted"
                     + " (afterglow_tls_handshake_failures_total)");
         }
     }
 
-    /** The innermost cause's class and message, one line, bounded (messages name certificates, never keys). */
-    private static String summary(Throwable cause) {
+    /**
+     * The innermost cause's class and message, one line, bounded. Messages name certificates and
+     * alerts, never keys; what a plain-text client sent (Netty quotes it in hex) is left out, since
+     * it may hold a token.
+     */
+    private static String summary(HandshakeFailure kind, Throwable cause) {
         Throwable root = cause;
         while (root.getCause() != null && root.getCause() != root) {
             root = root.getCause();
         }
-        String text = root.getClass().getSimpleName() + (root.getMessage() == null ? "" : ": " + root.getMessage());
-        text = text.replaceAll("\\s+", " ");
+        String message = kind == HandshakeFailure.NOT_TLS || root.getMessage() == null ? "" : ": " + root.getMessage();
+        String text = (root.getClass().getSimpleName() + message).replaceAll("\\s+", " ")
+                .replaceAll("[0-9a-fA-F]{32,}", "<bytes not shown>");
         return text.length() > 300 ? text.substring(0, 300) + "..." : text;
     }
 }

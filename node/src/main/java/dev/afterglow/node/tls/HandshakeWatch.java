@@ -6,7 +6,8 @@ import io.netty.handler.ssl.SslHandshakeCompletionEvent;
 
 /**
  * Sits right after the {@code SslHandler} of one connection until its handshake ends. A failed
- * handshake is recorded and the connection closed; the exceptions the {@code SslHandler} raises
+ * handshake is recorded and the connection closed (staged by {@link LingeringClose}, so the client
+ * reads the TLS alert); the exceptions the {@code SslHandler} raises
  * before the handshake succeeded are the same failure and go no further (the listener's own handlers
  * would otherwise count them as their errors). After a successful handshake it leaves the pipeline.
  * One instance per connection; runs on the connection's I/O thread.
@@ -14,11 +15,13 @@ import io.netty.handler.ssl.SslHandshakeCompletionEvent;
 final class HandshakeWatch extends ChannelInboundHandlerAdapter {
     private final TlsListener listener;
     private final HandshakeFailures failures;
+    private final LingeringClose close;
     private boolean failed;
 
-    HandshakeWatch(TlsListener listener, HandshakeFailures failures) {
+    HandshakeWatch(TlsListener listener, HandshakeFailures failures, LingeringClose close) {
         this.listener = listener;
         this.failures = failures;
+        this.close = close;
     }
 
     @Override
@@ -29,6 +32,7 @@ final class HandshakeWatch extends ChannelInboundHandlerAdapter {
                 ctx.fireUserEventTriggered(evt);
             } else if (!failed) {
                 failed = true;
+                close.arm();
                 failures.record(listener, ctx.channel().remoteAddress(), done.cause());
                 ctx.close();
             }
@@ -41,6 +45,8 @@ final class HandshakeWatch extends ChannelInboundHandlerAdapter {
     public void exceptionCaught(ChannelHandlerContext ctx, Throwable cause) {
         // Before the handshake succeeded every exception is the handshake's: the completion event
         // counts it (if the handshake has not failed yet, closing makes the SslHandler fail it).
-        ctx.close();
+        if (!failed) {
+            ctx.close();
+        }
     }
 }

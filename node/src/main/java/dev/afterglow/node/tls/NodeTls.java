@@ -64,7 +64,9 @@ public final class NodeTls {
         }
         SslHandler ssl = context.newHandler(ch.alloc());
         ssl.setHandshakeTimeoutMillis(handshakeTimeoutMs);
-        ch.pipeline().addFirst("tls-handshake-watch", new HandshakeWatch(listener, failures));
+        LingeringClose close = new LingeringClose();
+        ch.pipeline().addFirst("tls-handshake-watch", new HandshakeWatch(listener, failures, close));
         ch.pipeline().addFirst("tls", ssl);
+        ch.pipeline().addFirst("tls-lingering-close", close);
     }
 }
