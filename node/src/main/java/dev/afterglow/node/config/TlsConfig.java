@@ -97,6 +97,10 @@ public final class TlsConfig {
         if (keyFile.isEmpty()) {
             throw new ConfigException("tls.key-file is required when tls.cert-file is set");
         }
+        if (named.isEmpty()) {
+            throw new ConfigException("tls.listeners is empty while tls.cert-file is set: name any of " + TlsListener.names()
+                    + ", or leave tls.cert-file empty for no TLS");
+        }
         serverContext = TlsContexts.server(Path.of(certFile), Path.of(keyFile),
                 clientCaFile.isEmpty() ? null : Path.of(clientCaFile));
     }

@@ -141,6 +141,8 @@ class TlsConfigTest {
         assertEquals("tls.listeners[1]=htpp: expected ingest, subscribers or http",
                 error(tls(pki.serverCert, pki.serverKey, null, "[ingest, htpp]")));
         assertEquals("tls.listeners[1]=ingest is listed twice", error(tls(pki.serverCert, pki.serverKey, null, "[ingest, ingest]")));
+        assertEquals("tls.listeners is empty while tls.cert-file is set: name any of ingest, subscribers or http,"
+                + " or leave tls.cert-file empty for no TLS", error(tls(pki.serverCert, pki.serverKey, null, "[]")));
         // Checked even while TLS is off, so a typo does not wait for the day TLS is turned on.
         assertEquals("tls.listeners[0]=udp: expected ingest, subscribers or http", error(tls(null, null, null, "[udp]")));
     }
