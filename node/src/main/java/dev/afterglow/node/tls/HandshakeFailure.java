@@ -74,6 +74,11 @@ public enum HandshakeFailure {
             if (m != null && m.startsWith("Received fatal alert")) {
                 return CLIENT_ABORTED;
             }
+            if (t instanceof javax.crypto.BadPaddingException && m != null && m.contains("fragment (2)")) {
+                // A 2-byte record where an encrypted one was due: an alert (RFC 8446, sections 5.1 and 6)
+                // sent unencrypted, as OpenSSL clients (curl, Python) do when they refuse the node's certificate.
+                return CLIENT_ABORTED;
+            }
         }
         return OTHER;
     }

@@ -22,7 +22,6 @@ final class HandshakeFailures {
     }
 
     void record(TlsListener listener, SocketAddress remote, Throwable cause) {
-        counters.increment(NodeCounter.TLS_HANDSHAKE_FAILURES);
         HandshakeFailure kind = HandshakeFailure.of(cause);
         int bit = 1 << kind.ordinal();
         int before = loggedKinds.getAndUpdate(v -> v | bit);
@@ -31,6 +30,8 @@ final class HandshakeFailures {
                     + kind.description() + " [" + summary(kind, cause) + "]; further failures of this kind are only counted"
                     + " (afterglow_tls_handshake_failures_total)");
         }
+        // Counted after the log line, so whoever sees the count also finds the line.
+        counters.increment(NodeCounter.TLS_HANDSHAKE_FAILURES);
     }
 
     /**

@@ -7,6 +7,7 @@ import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import dev.afterglow.node.AfterglowNode;
+import dev.afterglow.node.tls.HandshakeFailure;
 import dev.afterglow.node.tls.TestPki;
 import java.nio.charset.StandardCharsets;
 import java.nio.file.Files;
@@ -58,10 +59,13 @@ class TlsCurlTest {
             assertTrue(ok.body.contains("# TYPE afterglow_tls_handshake_failures_total counter"), ok.body);
             assertTrue(ok.body.contains("afterglow_tls_handshake_failures_total 0.0"), ok.body);
 
-            // curl trusting only the system's CAs refuses the node's certificate.
-            Result untrusted = curl(https);
-            assertEquals(60, untrusted.exit, untrusted.toString());
-            waitFor(() -> failures(node) == 1);
+            // curl trusting only the system's CAs refuses the node's certificate; the node logs why.
+            try (TlsLog log = new TlsLog()) {
+                Result untrusted = curl(https);
+                assertEquals(60, untrusted.exit, untrusted.toString());
+                waitFor(() -> failures(node) == 1);
+                assertEquals(1, log.count(HandshakeFailure.CLIENT_ABORTED.description()), String.join("\n", log.lines()));
+            }
 
             // Plain HTTP on the TLS port gets no HTTP answer: "Empty reply from server".
             Result plain = curl("http://127.0.0.1:" + node.httpPort() + "/metrics");
