@@ -8,9 +8,14 @@ Needs python3-protobuf and python3-numpy, and Python code generated from the sch
 
 Each frame arrives as a varint-length-delimited Envelope; pixels become a numpy array of shape
 (height, width): uint8 for gray8 frames, float32 natural-log intensity for log-f32 frames.
+
+For a node with TLS on its subscriber port, add --tls-ca CA.pem (and --tls-cert/--tls-key if the
+node asks for client certificates). The node's certificate must name --host (DNS or IP).
 """
+import os
 import argparse
 import socket
+import ssl
 import sys
 
 import numpy as np
@@ -59,6 +64,20 @@ def write_envelope(sock, env):
     sock.sendall(bytes(prefix) + body)
 
 
+def wrap_tls(sock, args):
+    """The connection over TLS 1.2 or 1.3, checking the node's certificate against --tls-ca and --host."""
+    ctx = ssl.create_default_context(ssl.Purpose.SERVER_AUTH, cafile=args.tls_ca)
+    ctx.minimum_version = ssl.TLSVersion.TLSv1_2
+    if args.tls_cert:
+        ctx.load_cert_chain(args.tls_cert, args.tls_key)
+    try:
+        return ctx.wrap_socket(sock, server_hostname=args.host)
+    except (ssl.SSLError, OSError) as e:
+        sock.close()
+        print(f"TLS handshake with {args.host}:{args.port} failed: {e}", file=sys.stderr)
+        return None
+
+
 def frame_to_array(frame):
     """The frame's pixels as a (height, width) numpy array."""
     if frame.format == pb.PIXEL_FORMAT_LOG_F32:
@@ -75,18 +94,42 @@ def main():
     ap.add_argument("--format", choices=["gray8", "log-f32"], default="gray8")
     ap.add_argument("--count", type=int, default=10, help="frames to receive (0: forever)")
     ap.add_argument("--timeout", type=float, default=10.0, help="seconds to wait for a frame")
+    ap.add_argument("--token", default=os.environ.get("AFTERGLOW_SUBSCRIBER_TOKEN", ""),
+                    help="subscriber token, for a node that lists subscriber tokens "
+                         "(default: $AFTERGLOW_SUBSCRIBER_TOKEN, so it stays off the command line)")
+    ap.add_argument("--tls-ca", help="connect over TLS, trusting the CA certificates in this PEM file")
+    ap.add_argument("--tls-cert", help="client certificate (PEM) for a node that asks for one")
+    ap.add_argument("--tls-key", help="private key of --tls-cert (PEM)")
     args = ap.parse_args()
+    if (args.tls_cert or args.tls_key) and not args.tls_ca:
+        ap.error("--tls-cert and --tls-key need --tls-ca")
+    if bool(args.tls_cert) != bool(args.tls_key):
+        ap.error("--tls-cert and --tls-key go together")
 
     sock = socket.create_connection((args.host, args.port), timeout=args.timeout)
+    if args.tls_ca:
+        sock = wrap_tls(sock, args)
+        if sock is None:
+            return 3
     env = pb.Envelope(schema_version=1)
     env.subscribe.sensor_id = args.sensor
+    env.subscribe.token = args.token
     env.subscribe.rate_hz = args.rate
     env.subscribe.format = pb.PIXEL_FORMAT_LOG_F32 if args.format == "log-f32" else pb.PIXEL_FORMAT_GRAY8
-    write_envelope(sock, env)
+    try:
+        write_envelope(sock, env)
+    except ssl.SSLError as e:
+        print(f"TLS error: {e}", file=sys.stderr)
+        return 3
     f = sock.makefile("rb")
     received = 0
     while args.count == 0 or received < args.count:
-        msg = read_envelope(f)
+        try:
+            msg = read_envelope(f)
+        except ssl.SSLError as e:
+            # With TLS 1.3 the node's verdict on a client certificate arrives after the handshake.
+            print(f"TLS error: {e}", file=sys.stderr)
+            return 3
         if msg is None:
             print("node closed the connection", file=sys.stderr)
             return 1

@@ -42,6 +42,10 @@ public final class AfterglowCli implements Runnable {
                 line.getErr().println("afterglow: " + ex.getMessage());
                 return 2;
             }
+            if (ex instanceof javax.net.ssl.SSLException) {
+                line.getErr().println("afterglow: " + ex.getMessage()); // the handshake's reason, without a stack trace
+                return 1;
+            }
             throw ex;
         });
         return cl;

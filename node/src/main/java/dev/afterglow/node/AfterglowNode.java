@@ -24,6 +24,8 @@ import dev.afterglow.node.publish.SubscriberHandler;
 import dev.afterglow.node.stats.Counters;
 import dev.afterglow.node.stats.NodeCounter;
 import dev.afterglow.node.stats.NodeMeters;
+import dev.afterglow.node.tls.NodeTls;
+import dev.afterglow.node.tls.TlsListener;
 import dev.afterglow.node.wire.BoundedVarintFrameDecoder;
 import io.netty.bootstrap.Bootstrap;
 import io.netty.bootstrap.ServerBootstrap;
@@ -75,6 +77,8 @@ public final class AfterglowNode implements AutoCloseable {
     private final PrometheusMeterRegistry meterRegistry = new PrometheusMeterRegistry(PrometheusConfig.DEFAULT);
     private final NodeMeters meters;
     private final LiveViews liveViews;
+    /** TLS on the TCP listeners named in {@code tls.listeners} (nothing when TLS is off). */
+    private final NodeTls tls;
     private volatile boolean ready;
     private final PipelineWatchdog watch;
     private java.util.concurrent.ScheduledFuture<?> watchdog;
@@ -90,6 +94,7 @@ public final class AfterglowNode implements AutoCloseable {
         this.meters = new NodeMeters(meterRegistry, registry, publisher, nodeCounters);
         this.liveViews = new LiveViews(registry, clock);
         this.watch = new PipelineWatchdog(clock, config.limits.watchdogStallMs * 1_000_000L);
+        this.tls = NodeTls.of(config.tls, nodeCounters);
     }
 
     /** Starts a node with the system clock. */
@@ -131,8 +136,10 @@ public final class AfterglowNode implements AutoCloseable {
                             ConnectionGuard guard = new ConnectionGuard("ingest", limits.helloTimeoutMs, limits.messageTimeoutMs,
                                     limits.idleTimeoutS * 1000L, 0, nodeCounters, clock::monotonicNanos,
                                     (c, kind, message) -> ErrorReplies.sendAndClose(c, "timeout", message));
-                            ch.pipeline().addLast(limiter, guard, decoder,
+                            ch.pipeline().addLast(guard, decoder,
                                     new TcpIngestHandler(registry, clock, () -> guard.messageComplete(decoder.hasPartial())));
+                            tls.addTo(ch, TlsListener.INGEST); // in front of the guard: it times decrypted messages
+                            ch.pipeline().addFirst(limiter); // in front of everything: refused connections cost no handshake
                         }
                     })
                     .bind(new InetSocketAddress(address, config.listen.ingestTcpPort)).sync().channel();
@@ -170,9 +177,11 @@ public final class AfterglowNode implements AutoCloseable {
                             ConnectionGuard guard = new ConnectionGuard("subscribers", limits.helloTimeoutMs, limits.messageTimeoutMs,
                                     0, limits.subscriberStallTimeoutMs, nodeCounters, clock::monotonicNanos,
                                     (c, kind, message) -> ErrorReplies.sendAndClose(c, "timeout", message));
-                            ch.pipeline().addLast(limiter, guard, decoder,
+                            ch.pipeline().addLast(guard, decoder,
                                     new SubscriberHandler(registry, publisher, config.limits.maxSubscribers, access,
                                             () -> guard.messageComplete(decoder.hasPartial())));
+                            tls.addTo(ch, TlsListener.SUBSCRIBERS);
+                            ch.pipeline().addFirst(limiter);
                         }
                     })
                     .bind(new InetSocketAddress(address, config.listen.subscriberPort)).sync().channel();
@@ -196,10 +205,12 @@ public final class AfterglowNode implements AutoCloseable {
                             ConnectionGuard guard = new ConnectionGuard("http", limits.httpRequestTimeoutMs,
                                     limits.httpRequestTimeoutMs, limits.idleTimeoutS * 1000L, 0, nodeCounters,
                                     clock::monotonicNanos, null);
-                            ch.pipeline().addLast(limiter, guard, new HttpServerCodec(), new HttpObjectAggregator(64 << 10),
+                            ch.pipeline().addLast(guard, new HttpServerCodec(), new HttpObjectAggregator(64 << 10),
                                     new MessageMark(guard), origins, liveGate,
                                     new WebSocketServerProtocolHandler(LiveSocketGate.protocolConfig()),
                                     new LiveSocketHandler(liveViews), endpoints);
+                            tls.addTo(ch, TlsListener.HTTP);
+                            ch.pipeline().addFirst(limiter);
                         }
                     })
                     .bind(new InetSocketAddress(address, config.listen.httpPort)).sync().channel();

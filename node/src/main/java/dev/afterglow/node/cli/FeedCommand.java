@@ -1,12 +1,14 @@
 package dev.afterglow.node.cli;
 
 import dev.afterglow.filters.synth.SceneKind;
+import dev.afterglow.node.client.ClientTls;
 import dev.afterglow.node.client.SensorClient;
 import dev.afterglow.node.client.UdpSensorClient;
 import dev.afterglow.node.demo.SyntheticFeed;
 import java.util.Locale;
 import java.util.concurrent.Callable;
 import picocli.CommandLine.Command;
+import picocli.CommandLine.Mixin;
 import picocli.CommandLine.Option;
 
 /** Acts as a sensor: streams a synthetic scene into a running node. */
@@ -50,6 +52,9 @@ public final class FeedCommand implements Callable<Integer> {
     @Option(names = "--seed", description = "Seed. Default: ${DEFAULT-VALUE}")
     long seed = 7;
 
+    @Mixin
+    TlsOptions tls = new TlsOptions();
+
     @Override
     public Integer call() throws Exception {
         HostPort target = HostPort.parse("--node", node);
@@ -64,11 +69,15 @@ public final class FeedCommand implements Callable<Integer> {
         if (!transport.equals("tcp") && !transport.equals("udp")) {
             throw new IllegalArgumentException("--transport=" + transport + ": expected tcp or udp");
         }
+        ClientTls clientTls = tls.clientTls();
+        if (clientTls != null && transport.equals("udp")) {
+            throw new IllegalArgumentException("--tls-ca: TLS covers TCP only, not --transport=udp");
+        }
         SyntheticFeed feed = new SyntheticFeed(kind, width, height, noiseHz, seed);
         long sent;
         long start = System.nanoTime();
         if (transport.equals("tcp")) {
-            try (SensorClient c = SensorClient.connect(target.host(), target.port(), id, width, height, frames)) {
+            try (SensorClient c = SensorClient.connect(target.host(), target.port(), id, width, height, frames, clientTls)) {
                 sent = feed.run(SyntheticFeed.tcp(c), id, seconds, packetUs, speed, frames);
             }
         } else {

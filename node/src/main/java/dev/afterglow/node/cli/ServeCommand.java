@@ -23,6 +23,10 @@ public final class ServeCommand implements Callable<Integer> {
         AfterglowNode node = AfterglowNode.start(c);
         System.out.printf("afterglow: listening on %s  sensors tcp:%d udp:%d  subscribers tcp:%d%n",
                 c.listen.address, node.ingestTcpPort(), node.ingestUdpPort(), node.subscriberPort());
+        if (c.tls.enabled()) {
+            System.out.println("afterglow: TLS on " + String.join(", ", c.tls.listeners)
+                    + (c.tls.clientCaFile.isEmpty() ? "" : " (client certificates required)"));
+        }
         if (node.httpPort() >= 0) {
             System.out.printf("afterglow: http on %s:%d (/metrics /health /ready /status /live)%n", c.listen.address, node.httpPort());
         }

@@ -5,6 +5,7 @@ import dev.afterglow.proto.v1.PixelFormat;
 import java.nio.file.Path;
 import java.util.concurrent.Callable;
 import picocli.CommandLine.Command;
+import picocli.CommandLine.Mixin;
 import picocli.CommandLine.Option;
 
 /** Acts as a subscriber: prints per-frame numbers and optionally saves frames as PNG. */
@@ -39,6 +40,9 @@ public final class WatchCommand implements Callable<Integer> {
     @Option(names = "--save-every", description = "With --save: every N-th frame, 1 .. 100000. Default: ${DEFAULT-VALUE}")
     int saveEvery = 1;
 
+    @Mixin
+    TlsOptions tls = new TlsOptions();
+
     @Override
     public Integer call() throws Exception {
         HostPort target = HostPort.parse("--node", node);
@@ -66,7 +70,7 @@ public final class WatchCommand implements Callable<Integer> {
             }
         }
         try (SubscriberClient client = SubscriberClient.connect(target.host(), target.port(),
-                SubscriberClient.request(sensorId, rate, f, r[0], r[1], r[2], r[3], downscale))) {
+                SubscriberClient.request(sensorId, rate, f, r[0], r[1], r[2], r[3], downscale), tls.clientTls())) {
             new FrameWatcher(client, System.out, save, saveEvery).run(count);
         }
         return 0;

@@ -12,12 +12,11 @@ import com.google.protobuf.UnsafeByteOperations;
 import java.io.BufferedOutputStream;
 import java.io.IOException;
 import java.io.OutputStream;
-import java.net.InetSocketAddress;
 import java.net.Socket;
 
 /**
  * Streams one sensor's events and frames to a node over TCP: a hello, then delimited envelopes.
- * Blocking; one thread at a time.
+ * Blocking; one thread at a time. With {@link ClientTls} the connection uses TLS.
  *
  * <pre>
  * try (SensorClient c = SensorClient.connect("127.0.0.1", 7301, "dock-cam", 640, 480, false)) {
@@ -43,14 +42,23 @@ public final class SensorClient implements AutoCloseable {
     /** Connects and sends the hello. */
     public static SensorClient connect(String host, int port, String sensorId, int width, int height, boolean sendsFrames)
             throws IOException {
-        return connect(host, port, hello(sensorId, width, height, sendsFrames, ""));
+        return connect(host, port, hello(sensorId, width, height, sendsFrames, ""), null);
+    }
+
+    /** Connects (over TLS unless {@code tls} is null) and sends the hello. */
+    public static SensorClient connect(String host, int port, String sensorId, int width, int height, boolean sendsFrames,
+            ClientTls tls) throws IOException {
+        return connect(host, port, hello(sensorId, width, height, sendsFrames, ""), tls);
     }
 
     /** Connects and sends {@code hello} (for a sensor with a token: {@link #hello} with the token). */
     public static SensorClient connect(String host, int port, SensorHello hello) throws IOException {
-        Socket s = new Socket();
-        s.setTcpNoDelay(true);
-        s.connect(new InetSocketAddress(host, port), 5_000);
+        return connect(host, port, hello, null);
+    }
+
+    /** Connects (over TLS unless {@code tls} is null) and sends {@code hello}. */
+    public static SensorClient connect(String host, int port, SensorHello hello, ClientTls tls) throws IOException {
+        Socket s = ClientTls.open(host, port, tls);
         SensorClient c = new SensorClient(s, hello.getSensorId());
         c.send(Envelope.newBuilder().setSchemaVersion(SCHEMA_VERSION).setHello(hello).build());
         c.flush();

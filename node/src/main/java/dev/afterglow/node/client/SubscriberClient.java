@@ -8,11 +8,11 @@ import dev.afterglow.proto.v1.Subscribe;
 import java.io.BufferedInputStream;
 import java.io.IOException;
 import java.io.InputStream;
-import java.net.InetSocketAddress;
 import java.net.Socket;
 
 /**
  * Subscribes to one sensor's frames over TCP and reads them one by one. Blocking; one thread.
+ * With {@link ClientTls} the connection uses TLS.
  * A read timeout ({@link #setTimeoutMillis}) may strike in the middle of a frame: what was read so
  * far is kept, and the next {@link #next()} carries on from there.
  *
@@ -45,11 +45,20 @@ public final class SubscriberClient implements AutoCloseable {
         return connect(host, port, Subscribe.newBuilder().setSensorId(sensorId).setRateHz((float) rateHz).setFormat(format).build());
     }
 
+    /** Connects over TLS (unless {@code tls} is null) and subscribes to the whole sensor at full resolution. */
+    public static SubscriberClient connect(String host, int port, String sensorId, double rateHz, PixelFormat format,
+            ClientTls tls) throws IOException {
+        return connect(host, port, Subscribe.newBuilder().setSensorId(sensorId).setRateHz((float) rateHz).setFormat(format).build(), tls);
+    }
+
     /** Connects and sends a full subscribe request (region, downscale). */
     public static SubscriberClient connect(String host, int port, Subscribe request) throws IOException {
-        Socket s = new Socket();
-        s.setTcpNoDelay(true);
-        s.connect(new InetSocketAddress(host, port), 5_000);
+        return connect(host, port, request, null);
+    }
+
+    /** Connects (over TLS unless {@code tls} is null) and sends a full subscribe request. */
+    public static SubscriberClient connect(String host, int port, Subscribe request, ClientTls tls) throws IOException {
+        Socket s = ClientTls.open(host, port, tls);
         SubscriberClient c = new SubscriberClient(s);
         Envelope.newBuilder().setSchemaVersion(SensorClient.SCHEMA_VERSION).setSubscribe(request).build()
                 .writeDelimitedTo(s.getOutputStream());

@@ -54,7 +54,8 @@ public enum NodeCounter {
     CONNECTIONS_REFUSED(Scope.NODE, "afterglow.connections.refused", "Connections refused: too many from one address"),
     CONNECTIONS_TIMED_OUT(Scope.NODE, "afterglow.connections.timed.out", "Connections closed for a hello, message, request or idle timeout"),
     ORIGIN_REFUSED(Scope.NODE, "afterglow.http.origin.refused", "Browser requests refused for a foreign Origin"),
-    INTERNAL_ERRORS(Scope.NODE, "afterglow.internal.errors", "Unexpected exceptions caught by a handler (a bug; the loop keeps running)");
+    INTERNAL_ERRORS(Scope.NODE, "afterglow.internal.errors", "Unexpected exceptions caught by a handler (a bug; the loop keeps running)"),
+    TLS_HANDSHAKE_FAILURES(Scope.NODE, "afterglow.tls.handshake.failures", "TLS handshakes that failed (not TLS, timeout, untrusted or missing client certificate, client aborted); connection closed");
 
     /** Where a counter lives. */
     public enum Scope {

@@ -82,7 +82,7 @@ class PythonSubscriberExampleTest {
         }
     }
 
-    private static void requireTools() throws Exception {
+    static void requireTools() throws Exception {
         boolean ci = "true".equals(System.getenv("CI"));
         String missing = null;
         if (!Files.isExecutable(PYTHON)) {
