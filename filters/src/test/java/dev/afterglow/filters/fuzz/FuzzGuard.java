@@ -1,5 +1,11 @@
 package dev.afterglow.filters.fuzz;
 
+import java.io.FileDescriptor;
+import java.io.FileOutputStream;
+import java.io.IOException;
+import java.nio.charset.StandardCharsets;
+import java.nio.file.Files;
+import java.nio.file.Path;
 import java.util.List;
 import java.util.Locale;
 import net.jqwik.api.lifecycle.AroundPropertyHook;
@@ -25,7 +31,8 @@ import net.jqwik.api.lifecycle.TryLifecycleContext;
  *       prints the command that replays it.
  *   <li>An input that takes longer than {@code fuzz.slow-ms} (2000) fails the target with that
  *       input; one still running after {@code fuzz.hang-s} (60) is printed with the stack of the
- *       thread running it and the JVM is halted, so a hang fails the build instead of stalling it.
+ *       thread running it (on stderr and in {@value #HANG_REPORT}) and the JVM is halted, so a
+ *       hang fails the build instead of stalling it.
  * </ul>
  *
  * One line per target reports inputs, time and inputs/s: the figures in DEVELOPERS.md come from it.
@@ -38,8 +45,9 @@ public final class FuzzGuard implements AroundPropertyHook, AroundTryHook {
     public static final String DEFAULT_SEED = "20261202";
 
     private static final long SLOW_NANOS = Long.getLong("fuzz.slow-ms", 2000) * 1_000_000L;
+    /** Where a hang is reported besides stderr, relative to the module directory Surefire runs in. */
+    static final String HANG_REPORT = "target/fuzz-hang.txt";
     private static final long HANG_NANOS = Long.getLong("fuzz.hang-s", 60) * 1_000_000_000L;
-    private static final int MAX_PRINTED_CHARS = 4000;
 
     /** The input being run, read by the watchdog; null between inputs. */
     private static volatile Running running;
@@ -83,7 +91,8 @@ public final class FuzzGuard implements AroundPropertyHook, AroundTryHook {
     @Override
     public TryExecutionResult aroundTry(TryLifecycleContext context, TryExecutor aTry, List<Object> parameters) {
         long start = System.nanoTime();
-        running = new Running(context.label(), parameters, Thread.currentThread(), start);
+        running = new Running(context.containerClass().getSimpleName() + "#" + context.label(), parameters,
+                Thread.currentThread(), start);
         TryExecutionResult result;
         try {
             result = aTry.execute(parameters);
@@ -107,22 +116,35 @@ public final class FuzzGuard implements AroundPropertyHook, AroundTryHook {
             }
             Running r = running;
             if (r != null && System.nanoTime() - r.startNanos() > HANG_NANOS) {
-                StringBuilder b = new StringBuilder("fuzz HANG in ").append(r.target())
+                StringBuilder b = new StringBuilder("\nfuzz HANG in ").append(r.target())
                         .append(": one input running for more than fuzz.hang-s=").append(HANG_NANOS / 1_000_000_000L)
-                        .append(" s; input: ").append(abbreviate(String.valueOf(r.input()))).append('\n');
+                        .append(" s; input: ").append(FuzzInputs.abbreviate(String.valueOf(r.input()))).append('\n');
                 for (StackTraceElement e : r.thread().getStackTrace()) {
                     b.append("\tat ").append(e).append('\n');
                 }
-                System.err.print(b);
-                System.err.flush();
-                System.out.flush();
+                report(b.toString());
                 Runtime.getRuntime().halt(3);
             }
         }
     }
 
-    static String abbreviate(String text) {
-        return text.length() <= MAX_PRINTED_CHARS ? text
-                : text.substring(0, MAX_PRINTED_CHARS) + "... (" + text.length() + " chars)";
+    /**
+     * Writes a hang report where it survives the halt: straight to the process's stderr (Surefire's
+     * capture of System.err is buffered and lost) and to {@value #HANG_REPORT}.
+     */
+    private static void report(String text) {
+        byte[] bytes = text.getBytes(StandardCharsets.UTF_8);
+        try (FileOutputStream err = new FileOutputStream(FileDescriptor.err)) {
+            err.write(bytes);
+        } catch (IOException ignored) {
+            // the file below still has it
+        }
+        try {
+            Path file = Path.of(HANG_REPORT);
+            Files.createDirectories(file.getParent());
+            Files.write(file, bytes);
+        } catch (IOException ignored) {
+            // stderr above still has it
+        }
     }
 }

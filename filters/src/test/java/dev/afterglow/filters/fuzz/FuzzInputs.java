@@ -112,10 +112,10 @@ public final class FuzzInputs {
         return b.toString();
     }
 
-    /** {@code bytes} with 1 to 8 byte edits (flip a bit, set a byte, insert, delete, truncate). */
+    /** {@code bytes} with byte edits (flip a bit, set a byte, insert, delete, truncate): mostly 1 or 2, up to 8. */
     public static byte[] mutate(Random random, byte[] bytes) {
         byte[] b = bytes.clone();
-        for (int k = 1 + random.nextInt(8); k > 0; k--) {
+        for (int k = 1 + random.nextInt(random.nextInt(4) == 0 ? 8 : 2); k > 0; k--) {
             int op = random.nextInt(5);
             if (b.length == 0 || op == 2) {
                 int at = random.nextInt(b.length + 1);
@@ -150,5 +150,10 @@ public final class FuzzInputs {
             b.append(Character.forDigit((bytes[i] >> 4) & 0xF, 16)).append(Character.forDigit(bytes[i] & 0xF, 16));
         }
         return n < bytes.length ? b.append("... (").append(bytes.length).append(" bytes)").toString() : b.toString();
+    }
+
+    /** {@code text} cut to its first 4000 characters for failure messages. */
+    public static String abbreviate(String text) {
+        return text.length() <= 4000 ? text : text.substring(0, 4000) + "... (" + text.length() + " chars)";
     }
 }
