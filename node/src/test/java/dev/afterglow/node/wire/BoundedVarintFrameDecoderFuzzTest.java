@@ -57,6 +57,7 @@ class BoundedVarintFrameDecoderFuzzTest {
 
     @Property
     void emitsTheReferenceFramesWhateverTheCutAndReleasesEveryBuffer(@ForAll("inputs") Input in) {
+        assertEquals(ResourceLeakDetector.Level.PARANOID, ResourceLeakDetector.getLevel(), "leak detection on");
         FrameStreams.TrackingAllocator alloc = new FrameStreams.TrackingAllocator(in.direct());
         List<byte[]> pieces = FuzzInputs.cut(in.stream(), in.pieceSizes());
 
