@@ -29,7 +29,7 @@ import net.jqwik.api.lifecycle.TryLifecycleContext;
  *       bounded run in {@code mvn verify} sees the same inputs every time; {@code random} lets jqwik
  *       pick one (the {@code fuzz} profile). The seed is printed with every result, and a failure
  *       prints the command that replays it.
- *   <li>An input that takes longer than {@code fuzz.slow-ms} (2000) fails the target with that
+ *   <li>An input that takes longer than {@code fuzz.slow-ms} (5000) fails the target with that
  *       input; one still running after {@code fuzz.hang-s} (60) is printed with the stack of the
  *       thread running it (on stderr and in {@value #HANG_REPORT}) and the JVM is halted, so a
  *       hang fails the build instead of stalling it.
@@ -44,7 +44,7 @@ public final class FuzzGuard implements AroundPropertyHook, AroundTryHook {
     /** Seed when the build does not say. */
     public static final String DEFAULT_SEED = "20261202";
 
-    private static final long SLOW_NANOS = Long.getLong("fuzz.slow-ms", 2000) * 1_000_000L;
+    private static final long SLOW_NANOS = Long.getLong("fuzz.slow-ms", 5000) * 1_000_000L;
     /** Where a hang is reported besides stderr, relative to the module directory Surefire runs in. */
     static final String HANG_REPORT = "target/fuzz-hang.txt";
     private static final long HANG_NANOS = Long.getLong("fuzz.hang-s", 60) * 1_000_000_000L;
