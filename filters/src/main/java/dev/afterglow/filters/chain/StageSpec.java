@@ -15,7 +15,9 @@ public final class StageSpec {
         this.kind = kind;
         Map<String, Double> all = new LinkedHashMap<>();
         for (Param p : kind.params()) {
-            double v = given.getOrDefault(p.key(), p.defaultValue());
+            // + 0.0 turns -0.0 into 0.0: both print as 0, and Double.equals tells them apart, so a
+            // written "-0" would otherwise not survive the canonical-text round trip.
+            double v = given.getOrDefault(p.key(), p.defaultValue()) + 0.0;
             p.check(kind.label(), v);
             all.put(p.key(), v);
         }

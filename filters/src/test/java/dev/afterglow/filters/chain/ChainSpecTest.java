@@ -225,6 +225,23 @@ class ChainSpecTest {
         assertRejected("high-pass(cutoff=5rad/s) x", "high-pass", "text after ')'");
     }
 
+    /** Found by ChainSpecFuzzTest: "-0" was kept as -0.0, printed as 0 and so parsed back unequal. */
+    @ParameterizedTest
+    @CsvSource(delimiter = ';', value = {
+        "complementary(dark=-0.0)",
+        "hot-pixel(min-rate=-0.0rad/s)|direct-integration()",
+        "background-activity() | hot-pixel(learn=9e0s, min-rate=-0.0Hz) | direct-integration",
+        "complementary(low-cutoff=-0rad/s, dark=-0)"})
+    void shouldReadMinusZeroAsZeroSoTheCanonicalTextRoundTrips(String text) {
+        ChainSpec spec = ChainSpec.parse(text);
+        assertEquals(spec, ChainSpec.parse(spec.toString()), spec.toString());
+        for (StageSpec stage : spec.stages()) {
+            for (Param p : stage.kind().params()) {
+                assertEquals(0, Double.compare(Math.abs(stage.get(p.key())), stage.get(p.key())), p.key() + " is not -0.0");
+            }
+        }
+    }
+
     @Test
     void shouldRejectALowCutoffAboveTheCutoff() {
         assertRejected("complementary(cutoff=5rad/s, low-cutoff=10rad/s)", "complementary.low-cutoff", "10",

@@ -117,30 +117,48 @@ public final class SensorSettingsEndpoint {
     }
 
     private CompletableFuture<Reply> change(SensorPipeline pipeline, String body) {
-        SensorConfig next;
-        boolean chainChanged;
-        try {
-            JsonNode request = json.readTree(body);
-            if (request == null || !request.isObject()) {
-                throw new ConfigException("the body must be a JSON object of settings to change");
-            }
-            SensorConfig current = pipeline.config();
-            next = apply(current, request);
-            next.validate(pipeline.id());
-            chainChanged = !next.chainSpec().equals(current.chainSpec());
-        } catch (IOException e) {
-            String why = e instanceof com.fasterxml.jackson.core.JsonProcessingException j ? j.getOriginalMessage() : e.toString();
-            return done(Reply.text(HttpResponseStatus.BAD_REQUEST, "the body is not valid JSON: " + why));
-        } catch (ConfigException | ChainSpecException e) {
-            return done(Reply.text(HttpResponseStatus.BAD_REQUEST, e.getMessage()));
+        Change change = validate(json, pipeline.id(), pipeline.config(), body);
+        if (change.refused() != null) {
+            return done(change.refused());
         }
-        ObjectNode answer = settings(next, chainChanged);
-        return pipeline.reconfigure(next)
+        ObjectNode answer = settings(change.next(), change.chainChanged());
+        return pipeline.reconfigure(change.next())
                 .orTimeout(APPLY_TIMEOUT_SECONDS, TimeUnit.SECONDS)
                 .handle((ok, error) -> error == null
                         ? jsonReply(HttpResponseStatus.OK, answer)
                         : Reply.text(HttpResponseStatus.SERVICE_UNAVAILABLE,
                                 "the sensor's pipeline did not apply the change within " + APPLY_TIMEOUT_SECONDS + " s"));
+    }
+
+    /**
+     * A PATCH body checked against the settings in effect: either the validated settings to apply
+     * ({@code next}, and whether its chain differs) or the 400 answer ({@code refused}).
+     */
+    record Change(SensorConfig next, boolean chainChanged, Reply refused) {
+        static Change refuse(String message) {
+            return new Change(null, false, Reply.text(HttpResponseStatus.BAD_REQUEST, message));
+        }
+    }
+
+    /**
+     * Parses a PATCH body and validates the settings it asks for as a whole; {@code current} is not
+     * changed. Needs no network or pipeline, so the body parser can be tested (and fuzzed) alone.
+     */
+    static Change validate(ObjectMapper json, String sensorId, SensorConfig current, String body) {
+        try {
+            JsonNode request = json.readTree(body);
+            if (request == null || !request.isObject()) {
+                throw new ConfigException("the body must be a JSON object of settings to change");
+            }
+            SensorConfig next = apply(current, request);
+            next.validate(sensorId);
+            return new Change(next, !next.chainSpec().equals(current.chainSpec()), null);
+        } catch (IOException e) {
+            String why = e instanceof com.fasterxml.jackson.core.JsonProcessingException j ? j.getOriginalMessage() : e.toString();
+            return Change.refuse("the body is not valid JSON: " + why);
+        } catch (ConfigException | ChainSpecException e) {
+            return Change.refuse(e.getMessage());
+        }
     }
 
     /** The current settings with the request's changes, not yet validated as a whole. */
@@ -202,7 +220,12 @@ public final class SensorSettingsEndpoint {
     private static int stageIndex(ChainSpec spec, String stage, String setting) {
         List<StageSpec> stages = spec.stages();
         if (stage.chars().allMatch(Character::isDigit)) {
-            int position = Integer.parseInt(stage);
+            int position;
+            try {
+                position = Integer.parseInt(stage);
+            } catch (NumberFormatException tooLarge) { // more digits than an int holds: no such position either
+                position = Integer.MAX_VALUE;
+            }
             if (position >= stages.size()) {
                 throw new ConfigException("set." + setting + ": the chain has positions 0 .. " + (stages.size() - 1));
             }

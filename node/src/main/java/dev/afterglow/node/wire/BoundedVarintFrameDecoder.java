@@ -11,11 +11,15 @@ import java.util.List;
  * Splits a stream into messages each preceded by its length as a protobuf base-128 varint, and
  * refuses any length above a maximum (Netty's own varint decoder has no limit). A length that is
  * too long or a varint longer than 5 bytes raises an exception and the stream cannot be trusted
- * after it: the next handler counts it and closes the connection. Emits retained slices.
+ * after it: the next handler counts it and closes the connection, and this decoder discards every
+ * byte from there on (those still buffered and any that arrive before the close), so nothing read
+ * from inside the refused message is ever taken for a frame. Emits retained slices.
  */
 public final class BoundedVarintFrameDecoder extends ByteToMessageDecoder {
     private final int maxLength;
     private final Runnable onTruncated;
+    /** Set once a prefix has been refused: the rest of the stream is discarded. */
+    private boolean failed;
 
     /**
      * @param maxLength the largest accepted message length in bytes
@@ -42,6 +46,10 @@ public final class BoundedVarintFrameDecoder extends ByteToMessageDecoder {
 
     @Override
     protected void decode(ChannelHandlerContext ctx, ByteBuf in, List<Object> out) {
+        if (failed) {
+            in.skipBytes(in.readableBytes());
+            return;
+        }
         in.markReaderIndex();
         int start = in.readerIndex();
         long length = 0;
@@ -58,16 +66,23 @@ public final class BoundedVarintFrameDecoder extends ByteToMessageDecoder {
             }
             shift += 7;
             if (shift >= 35) {
-                throw new CorruptedFrameException("length prefix longer than 5 bytes");
+                throw refuse(in, new CorruptedFrameException("length prefix longer than 5 bytes"));
             }
         }
         if (length > maxLength) {
-            throw new TooLongFrameException("message length " + length + " > " + maxLength);
+            throw refuse(in, new TooLongFrameException("message length " + length + " > " + maxLength));
         }
         if (in.readableBytes() < length) {
             in.readerIndex(start);
             return;
         }
         out.add(in.readRetainedSlice((int) length));
+    }
+
+    /** Discards the rest of the stream and returns {@code error} to throw. */
+    private RuntimeException refuse(ByteBuf in, RuntimeException error) {
+        failed = true;
+        in.skipBytes(in.readableBytes());
+        return error;
     }
 }
