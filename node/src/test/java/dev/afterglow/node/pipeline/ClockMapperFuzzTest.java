@@ -7,12 +7,11 @@ import java.util.Arrays;
 import java.util.List;
 import java.util.Map;
 import java.util.TreeMap;
-import net.jqwik.api.Arbitraries;
+import dev.afterglow.filters.fuzz.FuzzInputs;
 import net.jqwik.api.Arbitrary;
 import net.jqwik.api.ForAll;
 import net.jqwik.api.Property;
 import net.jqwik.api.Provide;
-import net.jqwik.api.constraints.LongRange;
 
 /**
  * Fuzz target for the clock mapping ({@link ClockMapper}): honest packets arrive some delay
@@ -27,10 +26,14 @@ class ClockMapperFuzzTest {
     record Packet(long gapUs, long delayUs, long forgedLeadUs) {
     }
 
+    record Case(List<Packet> packets, long trueOffset, List<Long> forgedBins) {
+    }
+
     @Property
-    void noForgeryInTwoBinsMovesTheEstimateBelowTheTruth(@ForAll("packets") List<Packet> packets,
-            @ForAll @LongRange(min = -1_000_000_000_000L, max = 1_000_000_000_000L) long trueOffset,
-            @ForAll("bins") List<Long> forgedBins) {
+    void noForgeryInTwoBinsMovesTheEstimateBelowTheTruth(@ForAll("cases") Case c) {
+        List<Packet> packets = c.packets();
+        long trueOffset = c.trueOffset();
+        List<Long> forgedBins = c.forgedBins();
         ClockMapper m = new ClockMapper();
         long host = 1_000_000_000L;
         Map<Long, Long> honestMin = new TreeMap<>();
@@ -63,22 +66,24 @@ class ClockMapperFuzzTest {
     }
 
     @Provide
-    Arbitrary<List<Packet>> packets() {
-        Arbitrary<Long> gaps = Arbitraries.frequencyOf(
-                net.jqwik.api.Tuple.of(5, Arbitraries.longs().between(100, 20_000)),
-                net.jqwik.api.Tuple.of(1, Arbitraries.longs().between(20_000, 3_000_000)));
-        Arbitrary<Long> delays = Arbitraries.frequencyOf(
-                net.jqwik.api.Tuple.of(5, Arbitraries.longs().between(0, 2_000)),
-                net.jqwik.api.Tuple.of(1, Arbitraries.longs().between(0, 200_000)));
-        Arbitrary<Long> leads = Arbitraries.frequencyOf(
-                net.jqwik.api.Tuple.of(6, Arbitraries.just(0L)),
-                net.jqwik.api.Tuple.of(1, Arbitraries.longs().between(1, 1L << 50)));
-        return net.jqwik.api.Combinators.combine(gaps, delays, leads).as(Packet::new).list().ofMinSize(1).ofMaxSize(400);
-    }
-
-    /** Bins (mod 64) in which forged packets may land; the invariant is checked where a window holds at most two. */
-    @Provide
-    Arbitrary<List<Long>> bins() {
-        return Arbitraries.longs().between(0, 63).list().ofMaxSize(6).uniqueElements();
+    Arbitrary<Case> cases() {
+        return FuzzInputs.from(r -> {
+            List<Packet> packets = new java.util.ArrayList<>();
+            for (int n = 1 + r.nextInt(400); n > 0; n--) {
+                long gap = r.nextInt(6) < 5 ? 100 + r.nextInt(19_900) : 20_000 + r.nextInt(2_980_000);
+                long delay = r.nextInt(6) < 5 ? r.nextInt(2_001) : r.nextInt(200_001);
+                long lead = r.nextInt(7) < 6 ? 0 : 1 + Math.floorMod(r.nextLong(), 1L << 50);
+                packets.add(new Packet(gap, delay, lead));
+            }
+            List<Long> bins = new java.util.ArrayList<>();
+            for (int n = r.nextInt(7); n > 0; n--) { // residues mod 64 of the bins forgeries may land in
+                long b = r.nextInt(64);
+                if (!bins.contains(b)) {
+                    bins.add(b);
+                }
+            }
+            long trueOffset = Math.floorMod(r.nextLong(), 2_000_000_000_001L) - 1_000_000_000_000L;
+            return new Case(packets, trueOffset, bins);
+        });
     }
 }

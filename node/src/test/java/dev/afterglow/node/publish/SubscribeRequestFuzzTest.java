@@ -10,9 +10,8 @@ import dev.afterglow.filters.fuzz.FuzzTarget;
 import dev.afterglow.proto.v1.PixelFormat;
 import dev.afterglow.proto.v1.Region;
 import dev.afterglow.proto.v1.Subscribe;
-import net.jqwik.api.Arbitraries;
+import dev.afterglow.filters.fuzz.FuzzInputs;
 import net.jqwik.api.Arbitrary;
-import net.jqwik.api.Combinators;
 import net.jqwik.api.ForAll;
 import net.jqwik.api.Property;
 import net.jqwik.api.Provide;
@@ -27,9 +26,14 @@ import net.jqwik.api.Provide;
 @FuzzTarget
 class SubscribeRequestFuzzTest {
 
+    record Case(Subscribe request, int width, int height) {
+    }
+
     @Property
-    void everyRequestIsRefusedOrRendersInsideTheSensor(@ForAll("requests") Subscribe s,
-            @ForAll("sides") int width, @ForAll("sides") int height) {
+    void everyRequestIsRefusedOrRendersInsideTheSensor(@ForAll("cases") Case c) {
+        Subscribe s = c.request();
+        int width = c.width();
+        int height = c.height();
         SubscribeRequest.Outcome outcome = SubscribeRequest.resolve(s, width, height);
         boolean expected = reference(s, width, height);
         if (outcome.request() == null) {
@@ -84,36 +88,26 @@ class SubscribeRequestFuzzTest {
     }
 
     @Provide
-    Arbitrary<Integer> sides() {
-        return Arbitraries.frequencyOf(
-                net.jqwik.api.Tuple.of(4, Arbitraries.integers().between(1, 64)),
-                net.jqwik.api.Tuple.of(1, Arbitraries.integers().between(1, 32768)));
+    Arbitrary<Case> cases() {
+        return FuzzInputs.from(r -> {
+            int width = r.nextInt(5) < 4 ? 1 + r.nextInt(64) : 1 + r.nextInt(32768);
+            int height = r.nextInt(5) < 4 ? 1 + r.nextInt(64) : 1 + r.nextInt(32768);
+            Region region = r.nextInt(4) == 0 ? Region.getDefaultInstance()
+                    : Region.newBuilder().setX(u32(r, width)).setY(u32(r, height)).setWidth(u32(r, width)).setHeight(u32(r, height)).build();
+            float rate = switch (r.nextInt(6)) {
+                case 0 -> FuzzInputs.oneOf(r, Float.NaN, Float.POSITIVE_INFINITY, Float.NEGATIVE_INFINITY, -0f, -1f, 1000.01f, 1000f);
+                case 1 -> Float.intBitsToFloat(r.nextInt());
+                default -> r.nextFloat() * 1000;
+            };
+            int format = r.nextInt(5) == 0 ? r.nextInt() : r.nextInt(4);
+            Subscribe s = Subscribe.newBuilder().setSensorId("s").setRateHz(rate).setFormatValue(format)
+                    .setDownscale(u32(r, 17)).setRegion(region).build();
+            return new Case(s, width, height);
+        });
     }
 
-    /** Unsigned 32-bit values, weighted towards the edges where sign and overflow bugs live. */
-    private static Arbitrary<Integer> u32() {
-        return Arbitraries.frequencyOf(
-                net.jqwik.api.Tuple.of(4, Arbitraries.integers().between(0, 80)),
-                net.jqwik.api.Tuple.of(2, Arbitraries.integers().between(-64, -1)), // 2^32 - 64 .. 2^32 - 1
-                net.jqwik.api.Tuple.of(1, Arbitraries.integers().between(Integer.MIN_VALUE, Integer.MIN_VALUE + 64)),
-                net.jqwik.api.Tuple.of(1, Arbitraries.integers().between(Integer.MAX_VALUE - 64, Integer.MAX_VALUE)),
-                net.jqwik.api.Tuple.of(1, Arbitraries.integers()));
-    }
-
-    @Provide
-    Arbitrary<Subscribe> requests() {
-        Arbitrary<Region> regions = Combinators.combine(u32(), u32(), u32(), u32())
-                .as((x, y, w, h) -> Region.newBuilder().setX(x).setY(y).setWidth(w).setHeight(h).build());
-        Arbitrary<Float> rates = Arbitraries.frequencyOf(
-                net.jqwik.api.Tuple.of(4, Arbitraries.floats().between(0, 1000)),
-                net.jqwik.api.Tuple.of(1, Arbitraries.of(Float.NaN, Float.POSITIVE_INFINITY, Float.NEGATIVE_INFINITY, -0f, -1f, 1000.01f)),
-                net.jqwik.api.Tuple.of(1, Arbitraries.floats()));
-        Arbitrary<Integer> formats = Arbitraries.frequencyOf(
-                net.jqwik.api.Tuple.of(4, Arbitraries.integers().between(0, 3)),
-                net.jqwik.api.Tuple.of(1, Arbitraries.integers()));
-        Arbitrary<Boolean> whole = Arbitraries.of(true, false);
-        return Combinators.combine(regions, rates, formats, u32(), whole).as((r, rate, format, ds, all) ->
-                Subscribe.newBuilder().setSensorId("s").setRateHz(rate).setFormatValue(format).setDownscale(ds)
-                        .setRegion(all ? Region.getDefaultInstance() : r).build());
+    /** An unsigned 32-bit value near 0, near {@code edge}, or near 2^31 and 2^32 (where sign and overflow bugs live). */
+    private static int u32(java.util.Random r, int edge) {
+        return FuzzInputs.near(r, 40, 0, edge, Integer.MIN_VALUE, Integer.MAX_VALUE, -1);
     }
 }
