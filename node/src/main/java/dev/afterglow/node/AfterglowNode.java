@@ -57,6 +57,8 @@ import java.util.concurrent.TimeUnit;
  */
 public final class AfterglowNode implements AutoCloseable {
     private static final int SUBSCRIBE_MAX_BYTES = 64 << 10;
+    /** Largest first message on a sensor connection: a hello is a few hundred bytes. */
+    private static final int HELLO_MAX_BYTES = 64 << 10;
     /** Largest UDP payload over IPv4: 65,535 - 20 (IP header) - 8 (UDP header). */
     private static final int MAX_DATAGRAM_BYTES = 65_507;
 
@@ -131,7 +133,8 @@ public final class AfterglowNode implements AutoCloseable {
                     .childHandler(new ChannelInitializer<SocketChannel>() {
                         @Override
                         protected void initChannel(SocketChannel ch) {
-                            BoundedVarintFrameDecoder decoder = new BoundedVarintFrameDecoder(maxMessage,
+                            // The hello is small: an unidentified peer cannot make the node hold a large message.
+                            BoundedVarintFrameDecoder decoder = new BoundedVarintFrameDecoder(HELLO_MAX_BYTES, maxMessage,
                                     () -> nodeCounters.increment(NodeCounter.STREAMS_TRUNCATED));
                             ConnectionGuard guard = new ConnectionGuard("ingest", limits.helloTimeoutMs, limits.messageTimeoutMs,
                                     limits.idleTimeoutS * 1000L, 0, nodeCounters, clock::monotonicNanos,

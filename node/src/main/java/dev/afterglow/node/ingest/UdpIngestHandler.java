@@ -27,7 +27,8 @@ import java.net.InetAddress;
  * parsed); a sensor without one accepts plain datagrams from the networks in its
  * {@code udp-from} list (loopback by default). Source addresses of UDP can be forged by anyone on
  * the path, so the allow-list only keeps out honest mistakes and remote strangers; the seal is
- * what authenticates. Anything refused or malformed is counted and dropped; nothing is sent back.
+ * what authenticates. While a sensor is connected over TCP, its connection vouches for its
+ * packets and plain datagrams for it are refused. Anything refused or malformed is counted and dropped; nothing is sent back.
  * Sequence numbers and times are checked on the sensor's pipeline thread. One I/O thread.
  */
 public final class UdpIngestHandler extends SimpleChannelInboundHandler<DatagramPacket> {
@@ -122,6 +123,11 @@ public final class UdpIngestHandler extends SimpleChannelInboundHandler<Datagram
         SensorConfig c = p.config();
         if (c.hasToken()) {
             refuse(sensorId, "an unsealed datagram, but it has a token");
+            return null;
+        }
+        if (p.connected()) {
+            // Its TCP connection vouches for its packets; a plain datagram could come from anyone.
+            refuse(sensorId, "an unsealed datagram while it is connected over TCP");
             return null;
         }
         if (!c.udpSources().allows(source)) {

@@ -134,6 +134,8 @@ public final class SensorPipeline {
     private long lastSensorFrameUs;
     /** Newest event time of any packet accepted on the current timeline; Long.MIN_VALUE before the first. */
     private long newestAcceptedUs = Long.MIN_VALUE;
+    /** Host arrival (us) of the packet that brought {@link #newestAcceptedUs}. */
+    private long newestAcceptedArrivalUs;
 
     /**
      * @param config validated sensor settings (geometry, chain, rate, budget)
@@ -389,7 +391,7 @@ public final class SensorPipeline {
         // Shed before decoding: the lag check uses the last record's time (packets are in time order).
         long newest = packet.getTimeBaseUs() + (bytes.order(java.nio.ByteOrder.LITTLE_ENDIAN)
                 .getInt(bytes.position() + (count - 1) * EventPacketCodec.BYTES_PER_EVENT) & 0xFFFFFFFFL);
-        switch (timeline.check(arrivalUs, newest, newestAcceptedUs)) {
+        switch (timeline.check(arrivalUs, newest, newestAcceptedUs, newestAcceptedArrivalUs)) {
             case FUTURE -> {
                 rejectOffTimeline(NodeCounter.PACKETS_FUTURE, count);
                 return;
@@ -398,11 +400,18 @@ public final class SensorPipeline {
                 rejectOffTimeline(NodeCounter.PACKETS_PAST, count);
                 return;
             }
+            case REANCHOR -> {
+                counters.increment(NodeCounter.CLOCK_REANCHORS);
+                clockMapper.reset();
+            }
             case RESYNC -> restart();
             case ON -> { }
         }
         clockMapper.observe(arrivalUs, newest);
-        newestAcceptedUs = Math.max(newestAcceptedUs, newest);
+        if (newest >= newestAcceptedUs) {
+            newestAcceptedUs = newest;
+            newestAcceptedArrivalUs = arrivalUs;
+        }
         lastPacketHostUs = arrivalUs;
         long nowUs = clock.monotonicNanos() / 1000;
         // Shed what could not be published within the budget: its age now plus the time processing takes.

@@ -4,7 +4,8 @@ package dev.afterglow.node.pipeline;
  * Decides whether a packet's time fits the sensor's recent timeline before it can touch any
  * state. The timeline is the clock mapping ({@link ClockMapper}): a packet whose newest event lies
  * more than {@code maxAheadUs} ahead of the sensor time the mapping expects at its arrival is
- * {@link Verdict#FUTURE}; one whose newest event is more than {@link #RESTART_THRESHOLD_US} before
+ * {@link Verdict#FUTURE}, unless it follows on from the sensor's own latest packet ({@link #OWN_LEAD_US});
+ * one whose newest event is more than {@link #RESTART_THRESHOLD_US} before
  * the newest event accepted so far is {@link Verdict#PAST}. Both are rejected, so one forged or corrupt
  * packet can neither drag the mapping nor make the sensor's real packets late.
  *
@@ -12,12 +13,15 @@ package dev.afterglow.node.pipeline;
  * packets off the old timeline that agree with each other: after {@value #RESYNC_PACKETS} such
  * packets in a row, spanning at least {@value #RESYNC_SPAN_US} us of host time with no packet on
  * the old timeline in between, the verdict is {@link Verdict#RESYNC} and the pipeline starts
- * afresh on the new timeline. A sensor that has just (re)connected over TCP resynchronises on its
- * first packet ({@link #open()}): its own connection vouches for it. Single owner thread.
+ * afresh on the new timeline. If the run is ahead by less than {@link #RESTART_THRESHOLD_US}, it is
+ * the mapping that was wrong, not the sensor's clock (its first packets were held up, say): the
+ * verdict is {@link Verdict#REANCHOR}, the mapping starts again and the sensor's state is kept.
+ * A sensor that has just (re)connected over TCP does the same on its first packet
+ * ({@link #open()}): its own connection vouches for it. Single owner thread.
  */
 final class SensorTimeline {
     /** Outcome for one packet. */
-    enum Verdict { ON, FUTURE, PAST, RESYNC }
+    enum Verdict { ON, FUTURE, PAST, REANCHOR, RESYNC }
 
     /** A jump back by more than this many microseconds of sensor time is off the timeline. */
     static final long RESTART_THRESHOLD_US = 10_000_000;
@@ -25,6 +29,13 @@ final class SensorTimeline {
     static final long RESYNC_SPAN_US = 200_000;
     /** Packets of one run may disagree by this much (arrival jitter). */
     static final long RESYNC_TOLERANCE_US = 50_000;
+    /**
+     * A packet may lead the sensor's own latest packet by the host time between their arrivals plus
+     * this much, whatever the mapping says: a stream that was held up and catches up in a burst
+     * (or whose first packets came late, so the mapping is behind) is followed, while a forged
+     * packet gains at most this much on the real stream.
+     */
+    static final long OWN_LEAD_US = 20_000;
 
     private final ClockMapper mapper;
     private final long maxAheadUs;
@@ -50,20 +61,26 @@ final class SensorTimeline {
 
     /**
      * Checks a packet that arrived at host {@code arrivalUs} with newest event {@code newestUs};
-     * {@code newestAcceptedUs} is the newest event time accepted so far or {@code Long.MIN_VALUE}.
+     * {@code newestAcceptedUs} is the newest event time accepted so far or {@code Long.MIN_VALUE},
+     * {@code newestAcceptedArrivalUs} the host arrival of the packet that brought it.
      */
-    Verdict check(long arrivalUs, long newestUs, long newestAcceptedUs) {
-        boolean future = mapper.ready() && mapper.offsetUs() - (arrivalUs - newestUs) > maxAheadUs;
+    Verdict check(long arrivalUs, long newestUs, long newestAcceptedUs, long newestAcceptedArrivalUs) {
+        long mappingLead = mapper.ready() ? mapper.offsetUs() - (arrivalUs - newestUs) : 0;
+        boolean followsOwnStream = newestAcceptedUs != Long.MIN_VALUE
+                && newestUs - newestAcceptedUs <= (arrivalUs - newestAcceptedArrivalUs) + OWN_LEAD_US;
+        boolean future = mappingLead > maxAheadUs && (mappingLead > RESTART_THRESHOLD_US || !followsOwnStream);
         boolean past = newestAcceptedUs != Long.MIN_VALUE && newestUs < newestAcceptedUs - RESTART_THRESHOLD_US;
         if (!future && !past) {
             run = 0;
             open = false;
             return Verdict.ON;
         }
+        // Ahead, but by less than a restart: sensor time still runs forward, only the mapping moves.
+        boolean mappingOnly = future && !past && mappingLead < RESTART_THRESHOLD_US;
         if (open) {
             open = false;
             run = 0;
-            return Verdict.RESYNC;
+            return mappingOnly ? Verdict.REANCHOR : Verdict.RESYNC;
         }
         long offset = arrivalUs - newestUs;
         if (run > 0 && Math.abs(offset - runOffsetUs) <= RESYNC_TOLERANCE_US) {
@@ -75,7 +92,7 @@ final class SensorTimeline {
         }
         if (run >= RESYNC_PACKETS && arrivalUs - runStartUs >= RESYNC_SPAN_US) {
             run = 0;
-            return Verdict.RESYNC;
+            return mappingOnly ? Verdict.REANCHOR : Verdict.RESYNC;
         }
         return future ? Verdict.FUTURE : Verdict.PAST;
     }

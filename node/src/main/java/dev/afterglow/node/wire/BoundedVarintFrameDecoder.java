@@ -17,6 +17,8 @@ import java.util.List;
  */
 public final class BoundedVarintFrameDecoder extends ByteToMessageDecoder {
     private final int maxLength;
+    /** Limit of the next message: the first message's own (smaller) limit until one has passed. */
+    private int limit;
     private final Runnable onTruncated;
     /** Set once a prefix has been refused: the rest of the stream is discarded. */
     private boolean failed;
@@ -26,7 +28,18 @@ public final class BoundedVarintFrameDecoder extends ByteToMessageDecoder {
      * @param onTruncated called once if the stream ends inside a message
      */
     public BoundedVarintFrameDecoder(int maxLength, Runnable onTruncated) {
+        this(maxLength, maxLength, onTruncated);
+    }
+
+    /**
+     * @param firstMaxLength the largest accepted length of the first message (a hello): until a
+     *     peer has said who it is, it cannot make the node hold more than this for it
+     * @param maxLength the largest accepted length of every later message
+     * @param onTruncated called once if the stream ends inside a message
+     */
+    public BoundedVarintFrameDecoder(int firstMaxLength, int maxLength, Runnable onTruncated) {
         this.maxLength = maxLength;
+        this.limit = Math.min(firstMaxLength, maxLength);
         this.onTruncated = onTruncated;
     }
 
@@ -69,14 +82,16 @@ public final class BoundedVarintFrameDecoder extends ByteToMessageDecoder {
                 throw refuse(in, new CorruptedFrameException("length prefix longer than 5 bytes"));
             }
         }
-        if (length > maxLength) {
-            throw refuse(in, new TooLongFrameException("message length " + length + " > " + maxLength));
+        if (length > limit) {
+            throw refuse(in, new TooLongFrameException("message length " + length + " > " + limit
+                    + (limit < maxLength ? " (first message)" : "")));
         }
         if (in.readableBytes() < length) {
             in.readerIndex(start);
             return;
         }
         out.add(in.readRetainedSlice((int) length));
+        limit = maxLength;
     }
 
     /** Discards the rest of the stream and returns {@code error} to throw. */

@@ -11,17 +11,21 @@ class SensorTimelineTest {
     private final ClockMapper mapper = new ClockMapper();
     private final SensorTimeline timeline = new SensorTimeline(mapper, MAX_AHEAD_US);
     private long newest = Long.MIN_VALUE;
+    private long newestArrival;
 
     /** A packet with newest event at sensor {@code t}, arriving at host {@code arrival}; observed if on the timeline. */
     private SensorTimeline.Verdict packet(long arrival, long t) {
-        SensorTimeline.Verdict v = timeline.check(arrival, t, newest);
+        SensorTimeline.Verdict v = timeline.check(arrival, t, newest, newestArrival);
         if (v != SensorTimeline.Verdict.FUTURE && v != SensorTimeline.Verdict.PAST) {
-            if (v == SensorTimeline.Verdict.RESYNC) {
+            if (v == SensorTimeline.Verdict.RESYNC || v == SensorTimeline.Verdict.REANCHOR) {
                 mapper.reset();
                 newest = Long.MIN_VALUE;
             }
             mapper.observe(arrival, t);
-            newest = Math.max(newest, t);
+            if (t >= newest) {
+                newest = t;
+                newestArrival = arrival;
+            }
         }
         return v;
     }
@@ -85,5 +89,47 @@ class SensorTimelineTest {
         timeline.open();
         assertEquals(SensorTimeline.Verdict.RESYNC, packet(t + OFFSET, t + 60_000_000));
         assertEquals(SensorTimeline.Verdict.ON, packet(t + OFFSET + 1_000, t + 60_001_000));
+    }
+
+    @Test
+    void shouldFollowAStreamWhoseFirstPacketsWereHeldUpAndThenCaughtUp() {
+        // the first 1.5 s of packets arrive 0.8 s late; the sender then catches up in a burst and goes on on time
+        long t = 0;
+        for (; t < 1_500_000; t += 1_000) {
+            assertEquals(SensorTimeline.Verdict.ON, packet(t + OFFSET + 800_000, t));
+        }
+        long burstHost = t + OFFSET + 800_000;
+        for (; t < 2_300_000; t += 1_000) {
+            assertEquals(SensorTimeline.Verdict.ON, packet(burstHost, t), "the catch-up burst follows on from the stream");
+        }
+        for (; t < 6_000_000; t += 1_000) {
+            assertEquals(SensorTimeline.Verdict.ON, packet(t + OFFSET + 500, t), "on time again at " + t);
+        }
+    }
+
+    @Test
+    void shouldReanchorTheMappingAfterARunAheadThatDoesNotFollowTheStream() {
+        long t = stream(0, 2_000_000);
+        // the sensor's clock steps 2 s forward (re-synchronised), a second after its last packet
+        long host = t + 1_000_000;
+        SensorTimeline.Verdict v;
+        int rejected = 0;
+        long s = t + 3_000_000;
+        while ((v = packet(host + OFFSET, s)) == SensorTimeline.Verdict.FUTURE) {
+            rejected++;
+            host += 1_000;
+            s += 1_000;
+        }
+        assertEquals(SensorTimeline.Verdict.REANCHOR, v, "less than a restart ahead: only the mapping moves");
+        assertEquals(SensorTimeline.RESYNC_SPAN_US / 1_000, rejected);
+    }
+
+    @Test
+    void shouldLetAForgedPacketGainNoMoreThanTheOwnLead() {
+        long t = stream(0, 2_000_000);
+        // a forger that follows the stream's own latest packet closely is let in, but only just ahead of it
+        assertEquals(SensorTimeline.Verdict.ON, packet(t + OFFSET, t + SensorTimeline.OWN_LEAD_US));
+        // one that leans on the first to go further is held to the mapping's limit
+        assertEquals(SensorTimeline.Verdict.FUTURE, packet(t + OFFSET, t + SensorTimeline.OWN_LEAD_US + MAX_AHEAD_US + 1));
     }
 }
