@@ -45,13 +45,25 @@ final class ConnectionHerd implements AutoCloseable {
     private final Thread poller;
     private volatile boolean running = true;
 
-    /** Opens {@code count} connections to {@code port}, from 127.0.0.firstAddress on, {@code perAddress} each. */
+    /** Opens {@code count} connections to {@code port}, from 127.0.0.firstAddress on, {@code perAddress} each, and reads them. */
     ConnectionHerd(int port, int count, int firstAddress, int perAddress) throws IOException {
+        this(port, count, firstAddress, perAddress, true, 0);
+    }
+
+    /**
+     * Opens the connections; with {@code reading} false nothing is ever read from them (a peer that
+     * stopped reading), and {@code receiveBufferBytes} > 0 sets a small receive window before connecting.
+     */
+    ConnectionHerd(int port, int count, int firstAddress, int perAddress, boolean reading, int receiveBufferBytes)
+            throws IOException {
         selector = Selector.open();
         InetSocketAddress target = new InetSocketAddress(InetAddress.getLoopbackAddress(), port);
         for (int i = 0; i < count; i++) {
             SocketChannel ch = SocketChannel.open();
             ch.setOption(StandardSocketOptions.TCP_NODELAY, true);
+            if (receiveBufferBytes > 0) {
+                ch.setOption(StandardSocketOptions.SO_RCVBUF, receiveBufferBytes);
+            }
             ch.bind(new InetSocketAddress(Attacker.address(firstAddress + i / perAddress), 0));
             Conn c = new Conn(ch);
             try {
@@ -63,7 +75,7 @@ final class ConnectionHerd implements AutoCloseable {
             conns.add(c);
         }
         for (Conn c : conns) {
-            if (c.refusedAtOpen == null) {
+            if (c.refusedAtOpen == null && reading) {
                 c.channel.register(selector, SelectionKey.OP_READ, c);
             }
         }
@@ -116,6 +128,19 @@ final class ConnectionHerd implements AutoCloseable {
             } catch (IOException e) {
                 // closed by the node; the poller sees it
             }
+        }
+    }
+
+    /** Writes {@code bytes} to connection {@code i} if it is open (a small write: whatever the socket takes). */
+    void send(int i, byte[] bytes) {
+        Conn c = conns.get(i);
+        if (c.closed()) {
+            return;
+        }
+        try {
+            c.channel.write(ByteBuffer.wrap(bytes));
+        } catch (IOException e) {
+            // closed by the node
         }
     }
 

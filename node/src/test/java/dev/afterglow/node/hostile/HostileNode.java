@@ -177,7 +177,7 @@ final class HostileNode implements AutoCloseable {
     public void close() {
         process.destroy();
         try {
-            if (!process.waitFor(10, TimeUnit.SECONDS)) {
+            if (!process.waitFor(5, TimeUnit.SECONDS)) { // a wedged node may never finish draining
                 process.destroyForcibly().waitFor(5, TimeUnit.SECONDS);
             }
         } catch (InterruptedException e) {

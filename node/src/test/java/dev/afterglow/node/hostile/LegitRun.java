@@ -129,9 +129,13 @@ final class LegitRun implements AutoCloseable {
                 return false;
             }
         }, 5_000);
-        after = last[0] != null ? last[0] : node.metrics(2_000);
         subscriber.close();
         watch.close();
+        if (last[0] == null) {
+            throw new AssertionError("/metrics did not answer 200 within 2 s after the attack; the node's last output:\n"
+                    + node.outputTail(20) + "\nwatch: " + watch.problems());
+        }
+        after = last[0];
     }
 
     private long windowDelta(String name) {

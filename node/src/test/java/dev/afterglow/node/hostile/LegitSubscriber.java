@@ -38,6 +38,7 @@ final class LegitSubscriber implements AutoCloseable {
     private final Thread reader;
     private final ConcurrentSkipListSet<Long> indices = new ConcurrentSkipListSet<>();
     private final List<String> problems = new ArrayList<>();
+    private long problemCount;
     private volatile boolean running = true;
     private volatile long newestFrameUs = -1;
     private volatile long frames;
@@ -144,8 +145,11 @@ final class LegitSubscriber implements AutoCloseable {
 
     private void problem(String what) {
         synchronized (problems) {
-            if (problems.size() < 20) {
+            problemCount++;
+            if (problems.size() < 8) {
                 problems.add(what);
+            } else if (problems.size() == 8) {
+                problems.add("(more problems follow; only the first 8 are listed)");
             }
         }
     }
