@@ -21,7 +21,7 @@ import org.junit.jupiter.api.extension.RegisterExtension;
  * {@code limit} (the node refuses sensors it has no memory for), and the legitimate sensor must
  * not notice. Default limits only, so this runs against any version of the node.
  */
-@Timeout(value = 60, unit = TimeUnit.SECONDS)
+@Timeout(value = 60, unit = TimeUnit.SECONDS, threadMode = Timeout.ThreadMode.SEPARATE_THREAD)
 class LargeSensorFloodTest {
     static final double BUDGET_MS = 1000;
     @RegisterExtension

@@ -26,7 +26,7 @@ import org.junit.jupiter.api.extension.RegisterExtension;
  * the issue's 60 stalled subscribers (8 MiB of unsent frames each by default) or 110 x 3 MiB of
  * unfinished messages are well above it.
  */
-@Timeout(value = 90, unit = TimeUnit.SECONDS)
+@Timeout(value = 90, unit = TimeUnit.SECONDS, threadMode = Timeout.ThreadMode.SEPARATE_THREAD)
 class MemoryAttackTest {
     static final double BUDGET_MS = 1000;
     static final int DIRECT_MB = 256;

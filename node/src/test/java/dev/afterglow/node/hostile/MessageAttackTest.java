@@ -26,7 +26,7 @@ import org.junit.jupiter.api.extension.RegisterExtension;
  * configuration uses only settings the node has had before these attacks were addressed, so every
  * test here runs against any version of the node.
  */
-@Timeout(value = 60, unit = TimeUnit.SECONDS)
+@Timeout(value = 60, unit = TimeUnit.SECONDS, threadMode = Timeout.ThreadMode.SEPARATE_THREAD)
 class MessageAttackTest {
     /**
      * Latency budget of the legitimate sensors: generous, because the development machine's two

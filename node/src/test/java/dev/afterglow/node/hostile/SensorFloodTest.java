@@ -21,7 +21,7 @@ import org.junit.jupiter.api.extension.RegisterExtension;
  * sensor streams; at most {@code limits.max-sensors} (16 by default) sensors may be known at once,
  * and every hello beyond gets ErrorReport {@code limit}.
  */
-@Timeout(value = 60, unit = TimeUnit.SECONDS)
+@Timeout(value = 60, unit = TimeUnit.SECONDS, threadMode = Timeout.ThreadMode.SEPARATE_THREAD)
 class SensorFloodTest {
     static final double BUDGET_MS = 1000;
     static final String YAML = """

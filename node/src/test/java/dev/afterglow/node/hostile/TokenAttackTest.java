@@ -19,7 +19,7 @@ import org.junit.jupiter.api.extension.RegisterExtension;
  * connection, and no token is printed at start. The configuration uses the contract's sensor
  * tokens and {@code access.duplicate-sensor}; a node that predates them refuses it at start.
  */
-@Timeout(value = 60, unit = TimeUnit.SECONDS)
+@Timeout(value = 60, unit = TimeUnit.SECONDS, threadMode = Timeout.ThreadMode.SEPARATE_THREAD)
 class TokenAttackTest {
     static final double BUDGET_MS = 1000;
     static final String SEALED_TOKEN = "sealed-cam-secret-7d41e0b2";
