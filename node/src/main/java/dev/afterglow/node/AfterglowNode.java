@@ -1,6 +1,16 @@
 package dev.afterglow.node;
 
+import dev.afterglow.node.config.LimitsConfig;
 import dev.afterglow.node.config.NodeConfig;
+import dev.afterglow.node.guard.ConnectionGuard;
+import dev.afterglow.node.guard.ConnectionLimiter;
+import dev.afterglow.node.http.MessageMark;
+import dev.afterglow.node.http.OriginCheck;
+import dev.afterglow.node.ingest.ErrorReplies;
+import dev.afterglow.node.pipeline.ChainWarmup;
+import dev.afterglow.node.pipeline.PipelineWatchdog;
+import dev.afterglow.node.publish.SubscriberAccess;
+import dev.afterglow.node.stats.OnceLog;
 import dev.afterglow.node.http.HttpEndpoints;
 import dev.afterglow.node.ingest.TcpIngestHandler;
 import dev.afterglow.node.ingest.UdpIngestHandler;
@@ -66,6 +76,8 @@ public final class AfterglowNode implements AutoCloseable {
     private final NodeMeters meters;
     private final LiveViews liveViews;
     private volatile boolean ready;
+    private final PipelineWatchdog watch;
+    private java.util.concurrent.ScheduledFuture<?> watchdog;
 
     private AfterglowNode(NodeConfig config, NodeClock clock) {
         this.config = config;
@@ -73,10 +85,11 @@ public final class AfterglowNode implements AutoCloseable {
         this.ingestGroup = new MultiThreadIoEventLoopGroup(1, NioIoHandler.newFactory());
         this.serveGroup = new MultiThreadIoEventLoopGroup(1, NioIoHandler.newFactory());
         this.pipelineGroup = new DefaultEventLoopGroup(config.limits.pipelineThreads);
-        this.publisher = new FramePublisher(clock);
+        this.publisher = new FramePublisher(clock, nodeCounters, config.limits.frameBufferBytes);
         this.registry = new SensorRegistry(config, pipelineGroup, publisher, clock, nodeCounters);
         this.meters = new NodeMeters(meterRegistry, registry, publisher, nodeCounters);
         this.liveViews = new LiveViews(registry, clock);
+        this.watch = new PipelineWatchdog(clock, config.limits.watchdogStallMs * 1_000_000L);
     }
 
     /** Starts a node with the system clock. */
@@ -99,7 +112,13 @@ public final class AfterglowNode implements AutoCloseable {
     private void bind() throws InterruptedException {
         String address = config.listen.address;
         int maxMessage = config.limits.maxMessageBytes;
+        LimitsConfig limits = config.limits;
+        if (config.warmUp) {
+            ChainWarmup.run(config); // compile the hot paths before the first sensor's packets count against its budget
+        }
         if (config.listen.ingestTcpPort >= 0) {
+            ConnectionLimiter limiter = new ConnectionLimiter("ingest", limits.maxConnectionsPerAddress, nodeCounters,
+                    ch -> ErrorReplies.sendAndClose(ch, "limit", "too many connections from this address"));
             tcpIngest = new ServerBootstrap()
                     .group(ingestGroup)
                     .channel(NioServerSocketChannel.class)
@@ -107,9 +126,13 @@ public final class AfterglowNode implements AutoCloseable {
                     .childHandler(new ChannelInitializer<SocketChannel>() {
                         @Override
                         protected void initChannel(SocketChannel ch) {
-                            ch.pipeline().addLast(
-                                    new BoundedVarintFrameDecoder(maxMessage, () -> nodeCounters.increment(NodeCounter.STREAMS_TRUNCATED)),
-                                    new TcpIngestHandler(registry, clock));
+                            BoundedVarintFrameDecoder decoder = new BoundedVarintFrameDecoder(maxMessage,
+                                    () -> nodeCounters.increment(NodeCounter.STREAMS_TRUNCATED));
+                            ConnectionGuard guard = new ConnectionGuard("ingest", limits.helloTimeoutMs, limits.messageTimeoutMs,
+                                    limits.idleTimeoutS * 1000L, 0, nodeCounters, clock::monotonicNanos,
+                                    (c, kind, message) -> ErrorReplies.sendAndClose(c, "timeout", message));
+                            ch.pipeline().addLast(limiter, guard, decoder,
+                                    new TcpIngestHandler(registry, clock, () -> guard.messageComplete(decoder.hasPartial())));
                         }
                     })
                     .bind(new InetSocketAddress(address, config.listen.ingestTcpPort)).sync().channel();
@@ -131,6 +154,9 @@ public final class AfterglowNode implements AutoCloseable {
         }
         if (config.listen.subscriberPort >= 0) {
             int high = config.limits.subscriberHighWaterBytes;
+            SubscriberAccess access = new SubscriberAccess(config.access.subscriberTokens);
+            ConnectionLimiter limiter = new ConnectionLimiter("subscribers", limits.maxConnectionsPerAddress, nodeCounters,
+                    ch -> ErrorReplies.sendAndClose(ch, "limit", "too many connections from this address"));
             subscriberServer = new ServerBootstrap()
                     .group(serveGroup)
                     .channel(NioServerSocketChannel.class)
@@ -139,16 +165,25 @@ public final class AfterglowNode implements AutoCloseable {
                     .childHandler(new ChannelInitializer<SocketChannel>() {
                         @Override
                         protected void initChannel(SocketChannel ch) {
-                            ch.pipeline().addLast(
-                                    new BoundedVarintFrameDecoder(SUBSCRIBE_MAX_BYTES, () -> { }),
-                                    new SubscriberHandler(registry, publisher, config.limits.maxSubscribers));
+                            BoundedVarintFrameDecoder decoder = new BoundedVarintFrameDecoder(SUBSCRIBE_MAX_BYTES, () -> { });
+                            // No idle limit: a subscriber only listens. A stalled one (not reading) is dropped.
+                            ConnectionGuard guard = new ConnectionGuard("subscribers", limits.helloTimeoutMs, limits.messageTimeoutMs,
+                                    0, limits.subscriberStallTimeoutMs, nodeCounters, clock::monotonicNanos,
+                                    (c, kind, message) -> ErrorReplies.sendAndClose(c, "timeout", message));
+                            ch.pipeline().addLast(limiter, guard, decoder,
+                                    new SubscriberHandler(registry, publisher, config.limits.maxSubscribers, access,
+                                            () -> guard.messageComplete(decoder.hasPartial())));
                         }
                     })
                     .bind(new InetSocketAddress(address, config.listen.subscriberPort)).sync().channel();
         }
         if (config.listen.httpPort >= 0) {
-            HttpEndpoints endpoints = new HttpEndpoints(meterRegistry, meters, registry, publisher, config.control, () -> ready);
+            HttpEndpoints endpoints = new HttpEndpoints(meterRegistry, meters, registry, publisher, config.control,
+                    this::readiness);
             LiveSocketGate liveGate = new LiveSocketGate(liveViews);
+            OriginCheck origins = new OriginCheck(config.access.allowedOrigins, nodeCounters);
+            ConnectionLimiter limiter = new ConnectionLimiter("http", limits.maxConnectionsPerAddress, nodeCounters,
+                    ch -> HttpEndpoints.refuseAndClose(ch, "too many connections from this address"));
             httpServer = new ServerBootstrap()
                     .group(serveGroup)
                     .channel(NioServerSocketChannel.class)
@@ -158,14 +193,39 @@ public final class AfterglowNode implements AutoCloseable {
                     .childHandler(new ChannelInitializer<SocketChannel>() {
                         @Override
                         protected void initChannel(SocketChannel ch) {
-                            ch.pipeline().addLast(new HttpServerCodec(), new HttpObjectAggregator(64 << 10), liveGate,
+                            ConnectionGuard guard = new ConnectionGuard("http", limits.httpRequestTimeoutMs,
+                                    limits.httpRequestTimeoutMs, limits.idleTimeoutS * 1000L, 0, nodeCounters,
+                                    clock::monotonicNanos, null);
+                            ch.pipeline().addLast(limiter, guard, new HttpServerCodec(), new HttpObjectAggregator(64 << 10),
+                                    new MessageMark(guard), origins, liveGate,
                                     new WebSocketServerProtocolHandler(LiveSocketGate.protocolConfig()),
                                     new LiveSocketHandler(liveViews), endpoints);
                         }
                     })
                     .bind(new InetSocketAddress(address, config.listen.httpPort)).sync().channel();
         }
+        watchdog = serveGroup.next().scheduleAtFixedRate(this::housekeeping, 250, 250, TimeUnit.MILLISECONDS);
         ready = true;
+    }
+
+    /** Watchdog and idle-sensor eviction, off the pipeline and ingest threads. */
+    private void housekeeping() {
+        try {
+            watch.check(registry.all());
+            registry.evictIdle(clock.monotonicNanos());
+        } catch (RuntimeException e) {
+            nodeCounters.increment(NodeCounter.INTERNAL_ERRORS);
+            OnceLog.warn("housekeeping:" + e.getClass().getName(), "housekeeping: " + e, e);
+        }
+    }
+
+    /** Null when ready; otherwise why not (starting, or the pipelines that stalled). */
+    String readiness() {
+        if (!ready) {
+            return "starting";
+        }
+        String stalled = watch.stalled();
+        return stalled.isEmpty() ? null : "stalled: " + stalled;
     }
 
     /** Bound TCP ingest port, or -1. */
@@ -232,6 +292,9 @@ public final class AfterglowNode implements AutoCloseable {
     public void close() {
         // Stop intake first, then let pipelines drain their queues, then close subscriber connections.
         ready = false;
+        if (watchdog != null) {
+            watchdog.cancel(false);
+        }
         closeQuietly(httpServer);
         closeQuietly(tcpIngest);
         closeQuietly(udpIngest);

@@ -73,7 +73,7 @@ public class FrameEncodeBenchmark {
             }
         }
         toneMapper = new ToneMapper(ToneMap.DEFAULT);
-        publisher = new FramePublisher(NodeClock.SYSTEM);
+        publisher = new FramePublisher(NodeClock.SYSTEM, new dev.afterglow.node.stats.Counters(), Long.MAX_VALUE);
         channel = new EmbeddedChannel();
         PixelFormat f = format.equals("gray8") ? PixelFormat.PIXEL_FORMAT_GRAY8 : PixelFormat.PIXEL_FORMAT_LOG_F32;
         publisher.add(new Subscription(channel, "bench", f, 0, 0, WIDTH, HEIGHT, 1, 0));

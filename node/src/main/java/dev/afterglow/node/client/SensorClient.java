@@ -4,6 +4,7 @@ import dev.afterglow.filters.EventBatch;
 import dev.afterglow.filters.codec.EventPacketCodec;
 import dev.afterglow.proto.v1.ClockDescription;
 import dev.afterglow.proto.v1.Envelope;
+import dev.afterglow.proto.v1.ErrorReport;
 import dev.afterglow.proto.v1.EventPacket;
 import dev.afterglow.proto.v1.SensorFrame;
 import dev.afterglow.proto.v1.SensorHello;
@@ -42,15 +43,43 @@ public final class SensorClient implements AutoCloseable {
     /** Connects and sends the hello. */
     public static SensorClient connect(String host, int port, String sensorId, int width, int height, boolean sendsFrames)
             throws IOException {
+        return connect(host, port, hello(sensorId, width, height, sendsFrames, ""));
+    }
+
+    /** Connects and sends {@code hello} (for a sensor with a token: {@link #hello} with the token). */
+    public static SensorClient connect(String host, int port, SensorHello hello) throws IOException {
         Socket s = new Socket();
         s.setTcpNoDelay(true);
         s.connect(new InetSocketAddress(host, port), 5_000);
-        SensorClient c = new SensorClient(s, sensorId);
-        c.send(Envelope.newBuilder().setSchemaVersion(SCHEMA_VERSION).setHello(SensorHello.newBuilder()
-                .setSensorId(sensorId).setWidth(width).setHeight(height).setSendsFrames(sendsFrames)
-                .setClock(ClockDescription.newBuilder().setSource("sensor").setTickNs(1000))).build());
+        SensorClient c = new SensorClient(s, hello.getSensorId());
+        c.send(Envelope.newBuilder().setSchemaVersion(SCHEMA_VERSION).setHello(hello).build());
         c.flush();
         return c;
+    }
+
+    /** A hello with a microsecond sensor clock; {@code token} may be empty. */
+    public static SensorHello hello(String sensorId, int width, int height, boolean sendsFrames, String token) {
+        return SensorHello.newBuilder()
+                .setSensorId(sensorId).setWidth(width).setHeight(height).setSendsFrames(sendsFrames).setToken(token)
+                .setClock(ClockDescription.newBuilder().setSource("sensor").setTickNs(1000)).build();
+    }
+
+    /**
+     * Waits up to {@code timeoutMillis} for the node to answer: its error report if it refused or
+     * ended the connection with one, or null if it said nothing (the normal case: the node only
+     * speaks to refuse).
+     */
+    public ErrorReport awaitError(int timeoutMillis) throws IOException {
+        flush();
+        socket.setSoTimeout(timeoutMillis);
+        try {
+            Envelope e = Envelope.parseDelimitedFrom(socket.getInputStream());
+            return e != null && e.hasError() ? e.getError() : null;
+        } catch (java.net.SocketTimeoutException e) {
+            return null;
+        } finally {
+            socket.setSoTimeout(0);
+        }
     }
 
     /** Sends the batch's events as one packet (sequence numbers are assigned here); not flushed. */

@@ -1,5 +1,6 @@
 package dev.afterglow.node.config;
 
+import com.fasterxml.jackson.annotation.JsonProperty;
 import java.util.ArrayList;
 import java.util.List;
 
@@ -11,8 +12,10 @@ public final class AccessConfig {
     /** What happens when a sensor that is connected over TCP says hello again on another connection. */
     public enum DuplicateSensor {
         /** The newcomer is refused; the connected sensor keeps its connection (default). */
+        @JsonProperty("refuse")
         REFUSE,
         /** The newcomer replaces the old connection, but only if it authenticates with the sensor's token. */
+        @JsonProperty("replace")
         REPLACE
     }
 

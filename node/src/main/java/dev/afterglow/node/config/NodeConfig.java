@@ -1,6 +1,9 @@
 package dev.afterglow.node.config;
 
 import com.fasterxml.jackson.databind.DeserializationFeature;
+import com.fasterxml.jackson.databind.JsonNode;
+import com.fasterxml.jackson.databind.node.ObjectNode;
+import com.fasterxml.jackson.databind.node.TextNode;
 import com.fasterxml.jackson.databind.ObjectMapper;
 import com.fasterxml.jackson.databind.PropertyNamingStrategies;
 import com.fasterxml.jackson.databind.SerializationFeature;
@@ -10,6 +13,8 @@ import java.nio.file.Files;
 import java.nio.file.Path;
 import java.util.ArrayList;
 import java.util.HashSet;
+import java.util.Iterator;
+import java.util.Map;
 import java.util.List;
 import java.util.Set;
 
@@ -49,11 +54,19 @@ public final class NodeConfig {
     public TlsConfig tls = new TlsConfig();
     /** Who may connect (duplicate sensors, subscriber tokens, web origins). */
     public AccessConfig access = new AccessConfig();
+    /**
+     * Whether the node runs its configured chains over a generated stream for about a second
+     * before it accepts sensors, so the JIT has compiled them when the first packets arrive.
+     */
+    public boolean warmUp = true;
     /** Whether a sensor not listed under {@code sensors} may connect (it gets {@code sensor-defaults}). */
     public boolean acceptUnlistedSensors = true;
     /** Settings for unlisted sensors (id and geometry come from their hello). */
     public SensorConfig sensorDefaults = new SensorConfig();
     public List<SensorConfig> sensors = new ArrayList<>();
+
+    /** Keys of a listed sensor that never come from {@code sensor-defaults}. */
+    private static final Set<String> OWN_KEYS = Set.of("id", "width", "height");
 
     private static ObjectMapper mapper() {
         return new ObjectMapper(new YAMLFactory())
@@ -76,7 +89,10 @@ public final class NodeConfig {
     public static NodeConfig parse(String yaml, String source) {
         NodeConfig config;
         try {
-            config = yaml.isBlank() ? new NodeConfig() : mapper().readValue(yaml, NodeConfig.class);
+            ObjectMapper mapper = mapper();
+            JsonNode tree = yaml.isBlank() ? null : mapper.readTree(yaml);
+            inheritDefaults(tree);
+            config = tree == null || tree.isNull() || tree.isMissingNode() ? new NodeConfig() : mapper.treeToValue(tree, NodeConfig.class);
         } catch (IOException e) {
             String msg = e.getMessage() == null ? e.toString() : e.getMessage().lines().findFirst().orElse("");
             throw new ConfigException(source + ": " + msg, e);
@@ -86,6 +102,33 @@ public final class NodeConfig {
         }
         config.validate();
         return config;
+    }
+
+    /**
+     * Gives every listed sensor the {@code sensor-defaults} settings it does not set itself (id and
+     * geometry are the sensor's own), so listed sensors inherit what they leave out.
+     */
+    private static void inheritDefaults(JsonNode tree) {
+        if (tree == null || !tree.isObject()) {
+            return;
+        }
+        JsonNode defaults = tree.get("sensor-defaults");
+        JsonNode list = tree.get("sensors");
+        if (defaults == null || !defaults.isObject() || list == null || !list.isArray()) {
+            return;
+        }
+        for (JsonNode sensor : list) {
+            if (!sensor.isObject()) {
+                continue;
+            }
+            Iterator<Map.Entry<String, JsonNode>> fields = defaults.fields();
+            while (fields.hasNext()) {
+                Map.Entry<String, JsonNode> f = fields.next();
+                if (!OWN_KEYS.contains(f.getKey()) && !sensor.has(f.getKey())) {
+                    ((ObjectNode) sensor).set(f.getKey(), f.getValue().deepCopy());
+                }
+            }
+        }
     }
 
     /** The defaults, validated. */
@@ -111,11 +154,31 @@ public final class NodeConfig {
         for (int i = 0; i < sensors.size(); i++) {
             SensorConfig s = sensors.get(i);
             s.validate("sensors[" + i + "]", true);
+            if ((long) s.width * s.height > limits.maxSensorPixels) {
+                throw new ConfigException("sensors[" + i + "] " + s.width + "x" + s.height + " = " + (long) s.width * s.height
+                        + " pixels > limits.max-sensor-pixels=" + limits.maxSensorPixels);
+            }
             if (!ids.add(s.id)) {
                 throw new ConfigException("sensors[" + i + "].id=" + s.id + " is listed twice");
             }
         }
         return this;
+    }
+
+    private static void redact(JsonNode node) {
+        if (node.isObject()) {
+            Iterator<Map.Entry<String, JsonNode>> fields = node.fields();
+            while (fields.hasNext()) {
+                Map.Entry<String, JsonNode> f = fields.next();
+                if (f.getKey().equals("token") && f.getValue().isTextual() && !f.getValue().asText().isEmpty()) {
+                    f.setValue(TextNode.valueOf("<redacted>"));
+                } else {
+                    redact(f.getValue());
+                }
+            }
+        } else if (node.isArray()) {
+            node.forEach(NodeConfig::redact);
+        }
     }
 
     /** The listed sensor with this id, or null. */
@@ -128,10 +191,13 @@ public final class NodeConfig {
         return null;
     }
 
-    /** The effective configuration as YAML, for the start-up log. */
+    /** The effective configuration as YAML, for the start-up log; every secret shows as {@code <redacted>}. */
     public String toYaml() {
         try {
-            return mapper().writeValueAsString(this);
+            ObjectMapper mapper = mapper();
+            JsonNode tree = mapper.valueToTree(this);
+            redact(tree);
+            return mapper.writeValueAsString(tree);
         } catch (IOException e) {
             throw new IllegalStateException(e);
         }

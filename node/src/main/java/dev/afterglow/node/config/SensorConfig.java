@@ -2,6 +2,8 @@ package dev.afterglow.node.config;
 
 import dev.afterglow.filters.chain.ChainSpec;
 import dev.afterglow.filters.chain.ChainSpecException;
+import java.util.ArrayList;
+import java.util.List;
 
 /** One sensor's geometry and processing: chain, frame rate, latency budget. */
 public final class SensorConfig {
@@ -21,6 +23,16 @@ public final class SensorConfig {
     public double latencyBudgetMs = 50;
     /** Tone map of 8-bit frames: "percentile LOW HIGH" or "fixed LOWLOG HIGHLOG". */
     public String toneMap = "percentile 1 99";
+    /**
+     * Shared secret: when set, the sensor's hello must carry it, and its UDP datagrams must be
+     * sealed with it (HMAC-SHA256); at least 16 characters.
+     */
+    public String token = "";
+    /** Source networks (CIDR) from which unsealed UDP datagrams are accepted for this sensor. */
+    public List<String> udpFrom = new ArrayList<>(List.of("127.0.0.0/8", "::1/128"));
+
+    /** Parsed {@link #udpFrom}; valid after {@link #validate}. */
+    AddressFilter udpSources;
 
     /** Parsed chain; valid after {@link #validate}. */
     ChainSpec chainSpec;
@@ -40,6 +52,16 @@ public final class SensorConfig {
         Checks.range(at + ".readout-every-events", readoutEveryEvents, 0, 100_000_000);
         Checks.range(at + ".latency-budget-ms", latencyBudgetMs, 1, 10_000);
         ToneMapText.parse(at + ".tone-map", toneMap);
+        if (token == null) {
+            token = "";
+        }
+        if (!token.isEmpty()) {
+            Checks.secret(at + ".token", token);
+        }
+        if (udpFrom == null) {
+            udpFrom = new ArrayList<>();
+        }
+        udpSources = AddressFilter.parse(at + ".udp-from", udpFrom);
         try {
             chainSpec = ChainSpec.parse(chain);
         } catch (ChainSpecException e) {
@@ -53,6 +75,19 @@ public final class SensorConfig {
             chainSpec = ChainSpec.parse(chain);
         }
         return chainSpec;
+    }
+
+    /** Sources allowed to send this sensor unsealed UDP datagrams. */
+    public AddressFilter udpSources() {
+        if (udpSources == null) {
+            udpSources = AddressFilter.parse("udp-from", udpFrom);
+        }
+        return udpSources;
+    }
+
+    /** True when the sensor must authenticate (hello token, sealed datagrams). */
+    public boolean hasToken() {
+        return token != null && !token.isEmpty();
     }
 
     /** A copy of these settings. */
@@ -72,6 +107,9 @@ public final class SensorConfig {
         c.latencyBudgetMs = latencyBudgetMs;
         c.toneMap = toneMap;
         c.chainSpec = chainSpec;
+        c.token = token;
+        c.udpFrom = new ArrayList<>(udpFrom);
+        c.udpSources = udpSources;
         return c;
     }
 }

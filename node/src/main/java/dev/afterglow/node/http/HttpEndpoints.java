@@ -30,12 +30,12 @@ import java.nio.charset.StandardCharsets;
 import java.util.ArrayList;
 import java.util.Comparator;
 import java.util.List;
-import java.util.function.BooleanSupplier;
+import java.util.function.Supplier;
 
 /**
  * The node's HTTP endpoints: {@code GET /metrics} (Prometheus text exposition 0.0.4),
  * {@code /health} (200 while the process serves requests), {@code /ready} (200 once every listener
- * is bound, 503 before), {@code /status} (JSON: sensors and subscribers), the run-time settings
+ * is bound and no pipeline has stalled; 503 with the reason otherwise, naming stalled sensors), {@code /status} (JSON: sensors and subscribers), the run-time settings
  * under {@code /config/sensors} ({@link SensorSettingsEndpoint}) and the live view's page and files
  * ({@link LivePages}, {@code Cache-Control: no-cache}; its WebSocket is handled before this
  * handler). Other paths get 404, other methods on these paths 405. Shared by all connections
@@ -51,19 +51,19 @@ public final class HttpEndpoints extends SimpleChannelInboundHandler<FullHttpReq
     private final NodeMeters meters;
     private final SensorRegistry sensors;
     private final FramePublisher publisher;
-    private final BooleanSupplier ready;
+    private final Supplier<String> notReady;
     private final ObjectMapper json = new ObjectMapper();
     private final SensorSettingsEndpoint settings;
     private final LivePages live = new LivePages();
 
     public HttpEndpoints(PrometheusMeterRegistry prometheus, NodeMeters meters, SensorRegistry sensors,
-            FramePublisher publisher, ControlConfig control, BooleanSupplier ready) {
+            FramePublisher publisher, ControlConfig control, Supplier<String> notReady) {
         this.settings = new SensorSettingsEndpoint(control, sensors, json);
         this.prometheus = prometheus;
         this.meters = meters;
         this.sensors = sensors;
         this.publisher = publisher;
-        this.ready = ready;
+        this.notReady = notReady;
     }
 
     @Override
@@ -99,9 +99,11 @@ public final class HttpEndpoints extends SimpleChannelInboundHandler<FullHttpReq
                     yield body(HttpResponseStatus.OK, PROMETHEUS_TEXT, prometheus.scrape());
                 }
                 case "/health" -> text(HttpResponseStatus.OK, "ok\n");
-                case "/ready" -> ready.getAsBoolean()
-                        ? text(HttpResponseStatus.OK, "ready\n")
-                        : text(HttpResponseStatus.SERVICE_UNAVAILABLE, "starting\n");
+                case "/ready" -> {
+                    String why = notReady.get();
+                    yield why == null ? text(HttpResponseStatus.OK, "ready\n")
+                            : text(HttpResponseStatus.SERVICE_UNAVAILABLE, why + "\n");
+                }
                 default -> body(HttpResponseStatus.OK, "application/json", json.writeValueAsString(status()));
             };
             if (HttpMethod.HEAD.equals(request.method())) {
@@ -183,5 +185,12 @@ public final class HttpEndpoints extends SimpleChannelInboundHandler<FullHttpReq
     @Override
     public void exceptionCaught(ChannelHandlerContext ctx, Throwable cause) {
         ctx.close();
+    }
+
+    /** Answers 503 with {@code message} on a connection that is refused before any request, and closes it. */
+    public static void refuseAndClose(io.netty.channel.Channel channel, String message) {
+        FullHttpResponse r = text(HttpResponseStatus.SERVICE_UNAVAILABLE, message + "\n");
+        r.headers().set(HttpHeaderNames.CONNECTION, "close");
+        channel.writeAndFlush(r).addListener(ChannelFutureListener.CLOSE);
     }
 }

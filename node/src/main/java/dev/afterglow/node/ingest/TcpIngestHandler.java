@@ -7,6 +7,7 @@ import dev.afterglow.node.pipeline.SensorRegistry;
 import dev.afterglow.node.pipeline.Transport;
 import dev.afterglow.node.stats.Counters;
 import dev.afterglow.node.stats.NodeCounter;
+import dev.afterglow.node.stats.OnceLog;
 import dev.afterglow.node.wire.Envelopes;
 import dev.afterglow.proto.v1.Envelope;
 import io.netty.buffer.ByteBuf;
@@ -28,17 +29,23 @@ public final class TcpIngestHandler extends SimpleChannelInboundHandler<ByteBuf>
     private final SensorRegistry registry;
     private final NodeClock clock;
     private final Counters nodeCounters;
+    private final Runnable onMessage;
     private SensorPipeline sensor;
 
-    public TcpIngestHandler(SensorRegistry registry, NodeClock clock) {
+    /**
+     * @param onMessage called for every whole message (connection timeouts)
+     */
+    public TcpIngestHandler(SensorRegistry registry, NodeClock clock, Runnable onMessage) {
         this.registry = registry;
         this.clock = clock;
         this.nodeCounters = registry.nodeCounters();
+        this.onMessage = onMessage;
     }
 
     @Override
     protected void channelRead0(ChannelHandlerContext ctx, ByteBuf msg) {
         long arrival = clock.monotonicNanos();
+        onMessage.run();
         Envelope envelope;
         try {
             envelope = Envelopes.parse(msg);
@@ -111,6 +118,8 @@ public final class TcpIngestHandler extends SimpleChannelInboundHandler<ByteBuf>
             ctx.close(); // peer reset or vanished: nothing to tell it
         } else {
             nodeCounters.increment(NodeCounter.INTERNAL_ERRORS);
+            OnceLog.warn("ingest:" + c.getClass().getName(), "ingest connection from " + ctx.channel().remoteAddress()
+                    + " closed after an unexpected error: " + c, c);
             ctx.close();
         }
     }

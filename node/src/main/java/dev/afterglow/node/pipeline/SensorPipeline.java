@@ -17,6 +17,7 @@ import dev.afterglow.node.publish.FrameData;
 import dev.afterglow.node.publish.FramePublisher;
 import dev.afterglow.node.stats.Counters;
 import dev.afterglow.node.stats.NodeCounter;
+import dev.afterglow.node.stats.OnceLog;
 import dev.afterglow.proto.v1.EventPacket;
 import dev.afterglow.proto.v1.Provenance;
 import dev.afterglow.proto.v1.SensorFrame;
@@ -48,13 +49,25 @@ import java.util.concurrent.atomic.AtomicInteger;
  * While nobody subscribes to the sensor or watches its live view, frame times pass without a
  * readout (counted as unread).
  *
- * <p>Time rules: events older than the last published frame are dropped as late (counted). A
- * packet more than {@link #RESTART_THRESHOLD_US} older than the last frame means the sensor's
- * clock restarted: the sensor's state is rebuilt and counted.
+ * <p>Every number from the wire is checked before any arithmetic: counts and time bases are read
+ * as unsigned and range-checked on the I/O thread (a bad packet is rejected whole, counted as
+ * malformed). Time rules ({@link SensorTimeline}): a packet whose newest event is too far ahead of
+ * the sensor's timeline, or far behind its last frame, is rejected (counted) unless a run of
+ * consistent packets shows the sensor's clock really jumped, in which case its state is rebuilt
+ * (counted as a clock restart). Events older than the last published frame are dropped as late.
+ *
+ * <p>Isolation: every task on the pipeline thread runs guarded; an unexpected error resets this
+ * sensor's state (counted, logged once) and the thread carries on with the next task, for this
+ * and every other sensor. {@link #stalledForNanos} lets a watchdog see a pipeline that has work
+ * and makes no progress.
  */
 public final class SensorPipeline {
-    /** A jump back by more than this many microseconds of sensor time resets the sensor's state. */
-    public static final long RESTART_THRESHOLD_US = 10_000_000;
+    /** A jump back by more than this many microseconds of sensor time is off the sensor's timeline. */
+    public static final long RESTART_THRESHOLD_US = SensorTimeline.RESTART_THRESHOLD_US;
+    /** Largest accepted sensor time (time base, frame exposure), about 142 years of microseconds. */
+    public static final long MAX_SENSOR_TIME_US = 1L << 52;
+    /** Batches start this small and grow (rarely, by doubling) up to the packet limit. */
+    private static final int INITIAL_BATCH_EVENTS = 1 << 14;
 
     private final String id;
     private final int width;
@@ -68,11 +81,19 @@ public final class SensorPipeline {
     private final AtomicInteger pending = new AtomicInteger();
     private final java.util.concurrent.atomic.AtomicLong pendingBytes = new java.util.concurrent.atomic.AtomicLong();
     private final EventPacketCodec codec;
-    private final EventBatch batch;
-    private final EventBatch tail;
+    private final int maxEventsPerPacket;
+    private EventBatch batch;
+    private EventBatch tail;
     private final DecodeResult decoded = new DecodeResult();
     private final ClockMapper clockMapper = new ClockMapper();
+    private final SensorTimeline timeline;
     private final UdpSequence udpSequence = new UdpSequence();
+    /** Host monotonic time (ns) the running task started; 0 while idle. Written by the pipeline thread. */
+    private volatile long taskStartNanos;
+    /** Host monotonic time (ns) a packet or frame was last offered (for idle eviction). */
+    private volatile long lastInputNanos;
+    /** Host monotonic time (ns) the last task finished. */
+    private volatile long lastProgressNanos;
     private final float[] log;
     private final byte[] gray;
     private final LatencyRecorder sensorToPublish = new LatencyRecorder();
@@ -111,13 +132,15 @@ public final class SensorPipeline {
     private long lastPacketHostUs;
     private ScheduledFuture<?> idleTimer;
     private long lastSensorFrameUs;
+    /** Newest event time of any packet accepted on the current timeline; Long.MIN_VALUE before the first. */
+    private long newestAcceptedUs = Long.MIN_VALUE;
 
     /**
      * @param config validated sensor settings (geometry, chain, rate, budget)
      * @param loop the pipeline thread this sensor lives on
      */
     public SensorPipeline(SensorConfig config, EventLoop loop, FramePublisher publisher, NodeClock clock,
-            Counters counters, int maxPendingPackets, long maxPendingBytes, int maxEventsPerPacket) {
+            Counters counters, int maxPendingPackets, long maxPendingBytes, int maxEventsPerPacket, long maxTimeAheadUs) {
         this.id = config.id;
         this.width = config.width;
         this.height = config.height;
@@ -128,8 +151,13 @@ public final class SensorPipeline {
         this.maxPending = maxPendingPackets;
         this.maxPendingBytes = maxPendingBytes;
         this.codec = new EventPacketCodec(width, height);
-        this.batch = new EventBatch(maxEventsPerPacket);
-        this.tail = new EventBatch(maxEventsPerPacket);
+        this.maxEventsPerPacket = maxEventsPerPacket;
+        int initial = Math.min(maxEventsPerPacket, INITIAL_BATCH_EVENTS);
+        this.batch = new EventBatch(initial);
+        this.tail = new EventBatch(initial);
+        this.timeline = new SensorTimeline(clockMapper, maxTimeAheadUs);
+        this.lastProgressNanos = clock.monotonicNanos();
+        this.lastInputNanos = lastProgressNanos;
         this.log = new float[width * height];
         this.gray = new byte[width * height];
         this.live = new LiveTap(width, height, clock, counters);
@@ -210,20 +238,38 @@ public final class SensorPipeline {
     public CompletableFuture<Void> reconfigure(SensorConfig next) {
         Chain fresh = Chain.build(next.chainSpec(), width, height); // built here, off the pipeline thread
         CompletableFuture<Void> applied = new CompletableFuture<>();
-        loop.execute(() -> {
-            applyConfig(next, next.chainSpec().equals(chain.spec()) ? chain : fresh);
-            applied.complete(null);
+        execute(() -> {
+            try {
+                applyConfig(next, next.chainSpec().equals(chain.spec()) ? chain : fresh);
+                applied.complete(null);
+            } catch (RuntimeException e) {
+                applied.completeExceptionally(e);
+                throw e;
+            }
         });
         return applied;
+    }
+
+    /** Host monotonic time (ns) a packet or frame was last offered, or the pipeline was made. Any thread. */
+    public long lastInputNanos() {
+        return lastInputNanos;
+    }
+
+    /** True while a TCP connection of the sensor is attached. Any thread. */
+    public boolean connected() {
+        return connected;
     }
 
     /** Marks the sensor connected (idle frames are published while connected) or not. Any thread. */
     public void setConnected(boolean value) {
         connected = value;
-        loop.execute(() -> {
+        execute(() -> {
+            if (value) {
+                timeline.open(); // a new connection of the sensor may start a new timeline at once
+            }
             if (value && idleTimer == null) {
                 long periodMs = Math.max(5, Math.min(100, Math.round(1000 / rateHz)));
-                idleTimer = loop.scheduleAtFixedRate(this::onIdleTick, periodMs, periodMs, TimeUnit.MILLISECONDS);
+                idleTimer = loop.scheduleAtFixedRate(() -> guarded(this::onIdleTick), periodMs, periodMs, TimeUnit.MILLISECONDS);
             } else if (!value && idleTimer != null) {
                 idleTimer.cancel(false);
                 idleTimer = null;
@@ -249,19 +295,29 @@ public final class SensorPipeline {
      */
     public boolean offerPacket(EventPacket packet, long arrivalNanos, Transport transport) {
         boolean tcp = transport == Transport.TCP;
-        counters.increment(tcp ? NodeCounter.PACKETS_TCP : NodeCounter.PACKETS_UDP);
-        counters.add(tcp ? NodeCounter.EVENTS_TCP : NodeCounter.EVENTS_UDP, packet.getEventCount());
+        lastInputNanos = clock.monotonicNanos();
         long bytes = packet.getEvents().size();
+        // Unsigned on the wire: a count of 2^31 or more must not turn negative here.
+        long declared = Integer.toUnsignedLong(packet.getEventCount());
+        long present = bytes / EventPacketCodec.BYTES_PER_EVENT;
+        counters.increment(tcp ? NodeCounter.PACKETS_TCP : NodeCounter.PACKETS_UDP);
+        counters.add(tcp ? NodeCounter.EVENTS_TCP : NodeCounter.EVENTS_UDP, present);
+        if (declared * EventPacketCodec.BYTES_PER_EVENT != bytes || declared > maxEventsPerPacket
+                || Long.compareUnsigned(packet.getTimeBaseUs(), MAX_SENSOR_TIME_US) > 0) {
+            counters.increment(NodeCounter.PACKETS_MALFORMED);
+            counters.add(NodeCounter.EVENTS_REJECTED, present);
+            return false;
+        }
         int waitingPackets = pending.incrementAndGet();
         long waitingBytes = pendingBytes.addAndGet(bytes);
         if (waitingPackets > maxPending || waitingBytes > maxPendingBytes) {
             pending.decrementAndGet();
             pendingBytes.addAndGet(-bytes);
             counters.increment(NodeCounter.PACKETS_SHED_QUEUE);
-            counters.add(NodeCounter.EVENTS_SHED_QUEUE, packet.getEventCount());
+            counters.add(NodeCounter.EVENTS_SHED_QUEUE, present);
             return false;
         }
-        loop.execute(() -> {
+        execute(() -> {
             pending.decrementAndGet();
             pendingBytes.addAndGet(-bytes);
             onPacket(packet, arrivalNanos / 1000, transport);
@@ -271,33 +327,82 @@ public final class SensorPipeline {
 
     /** Hands one of the sensor's own frames to the pipeline thread. Any thread. */
     public void offerFrame(SensorFrame frame) {
+        lastInputNanos = clock.monotonicNanos();
         counters.increment(NodeCounter.SENSOR_FRAMES);
-        loop.execute(() -> onSensorFrame(frame));
+        execute(() -> onSensorFrame(frame));
+    }
+
+    /** Runs {@code task} on the pipeline thread, guarded ({@link #guarded}). */
+    void execute(Runnable task) {
+        try {
+            loop.execute(() -> guarded(task));
+        } catch (java.util.concurrent.RejectedExecutionException e) {
+            // the node is shutting down: the pipeline thread takes no more work
+        }
+    }
+
+    /**
+     * Runs one pipeline task; an unexpected error costs this sensor its state, nothing more: it is
+     * counted, logged once, the sensor starts afresh, and the thread goes on with its next task.
+     */
+    private void guarded(Runnable task) {
+        taskStartNanos = clock.monotonicNanos();
+        try {
+            task.run();
+        } catch (RuntimeException | StackOverflowError | OutOfMemoryError e) {
+            counters.increment(NodeCounter.PIPELINE_FAILURES);
+            OnceLog.warn("pipeline:" + id + ":" + e.getClass().getName(),
+                    "sensor " + id + ": " + e + " while processing; its state was reset", e);
+            try {
+                resetState();
+            } catch (RuntimeException | OutOfMemoryError again) {
+                OnceLog.warn("pipeline-reset:" + id, "sensor " + id + ": reset failed: " + again, again);
+            }
+        } finally {
+            lastProgressNanos = clock.monotonicNanos();
+            taskStartNanos = 0;
+        }
+    }
+
+    /**
+     * How long this pipeline has had work without finishing any (a task running, or packets
+     * waiting), in nanoseconds at host time {@code nowNanos}; 0 if it is idle or progressing. Any thread.
+     */
+    public long stalledForNanos(long nowNanos) {
+        long start = taskStartNanos;
+        if (start != 0) {
+            return nowNanos - start;
+        }
+        return pending.get() > 0 ? Math.max(0, nowNanos - lastProgressNanos) : 0;
     }
 
     private void onPacket(EventPacket packet, long arrivalUs, Transport transport) {
-        int count = packet.getEventCount();
+        int count = packet.getEventCount(); // checked on the I/O thread: 0 .. maxEventsPerPacket
         if (transport == Transport.UDP && !acceptUdpSequence(packet.getSequence())) {
             counters.add(NodeCounter.EVENTS_REJECTED, count);
-            return;
-        }
-        java.nio.ByteBuffer bytes = packet.getEvents().asReadOnlyByteBuffer();
-        if ((long) count * EventPacketCodec.BYTES_PER_EVENT != bytes.remaining() || count > batch.capacity()) {
-            counters.increment(NodeCounter.PACKETS_MALFORMED);
-            counters.add(NodeCounter.EVENTS_REJECTED, count);
-            droppedSinceFrame += count;
             return;
         }
         if (count == 0) {
             return;
         }
+        java.nio.ByteBuffer bytes = packet.getEvents().asReadOnlyByteBuffer();
         // Shed before decoding: the lag check uses the last record's time (packets are in time order).
         long newest = packet.getTimeBaseUs() + (bytes.order(java.nio.ByteOrder.LITTLE_ENDIAN)
                 .getInt(bytes.position() + (count - 1) * EventPacketCodec.BYTES_PER_EVENT) & 0xFFFFFFFFL);
-        if (lastFrameUs != Long.MIN_VALUE && newest < lastFrameUs - RESTART_THRESHOLD_US) {
-            restart();
+        switch (timeline.check(arrivalUs, newest, newestAcceptedUs)) {
+            case FUTURE -> {
+                rejectOffTimeline(NodeCounter.PACKETS_FUTURE, count);
+                return;
+            }
+            case PAST -> {
+                rejectOffTimeline(NodeCounter.PACKETS_PAST, count);
+                return;
+            }
+            case RESYNC -> restart();
+            case ON -> { }
         }
         clockMapper.observe(arrivalUs, newest);
+        newestAcceptedUs = Math.max(newestAcceptedUs, newest);
         lastPacketHostUs = arrivalUs;
         long nowUs = clock.monotonicNanos() / 1000;
         // Shed what could not be published within the budget: its age now plus the time processing takes.
@@ -307,6 +412,7 @@ public final class SensorPipeline {
             droppedSinceFrame += count;
             return;
         }
+        ensureBatchCapacity(count);
         codec.decode(bytes, count, packet.getTimeBaseUs(), batch, decoded);
         counters.add(NodeCounter.EVENTS_RECEIVED, count);
         int dropped = decoded.outsideSensor + decoded.offsetTooLarge;
@@ -330,9 +436,29 @@ public final class SensorPipeline {
         workMeanUs += (workUs - workMeanUs) / 16;
     }
 
+    private void rejectOffTimeline(NodeCounter counter, int count) {
+        counters.increment(counter);
+        counters.add(NodeCounter.EVENTS_REJECTED, count);
+        droppedSinceFrame += count;
+    }
+
+    /** Grows the two work batches (by doubling, up to the packet limit) when a packet needs more room. */
+    private void ensureBatchCapacity(int count) {
+        if (count <= batch.capacity()) {
+            return;
+        }
+        int capacity = batch.capacity();
+        while (capacity < count) {
+            capacity = (int) Math.min(maxEventsPerPacket, capacity * 2L);
+        }
+        batch = new EventBatch(capacity);
+        tail = new EventBatch(capacity);
+    }
+
     private boolean acceptUdpSequence(long seq) {
         UdpSequence.Outcome outcome = udpSequence.accept(seq);
         counters.add(NodeCounter.UDP_LOST, udpSequence.takeLost());
+        counters.add(NodeCounter.UDP_RESYNCS, udpSequence.takeResyncs());
         switch (outcome) {
             case DUPLICATE:
                 counters.increment(NodeCounter.UDP_DUPLICATE);
@@ -359,14 +485,23 @@ public final class SensorPipeline {
         windowStartUs = firstEventUs;
     }
 
+    /** The sensor's clock jumped: start afresh (counted). */
     private void restart() {
         counters.increment(NodeCounter.CLOCK_RESTARTS);
+        resetState();
+    }
+
+    /** Forgets the schedule, the clock mapping and the reconstruction: the sensor starts afresh. */
+    private void resetState() {
         SensorConfig c = config;
         scheduleStarted = false;
         lastFrameUs = Long.MIN_VALUE;
+        newestAcceptedUs = Long.MIN_VALUE;
         clockMapper.reset();
+        timeline.reset();
         udpSequence.reset();
         eventsSinceFrame = 0;
+        droppedSinceFrame = 0;
         applyConfig(c, Chain.build(c.chainSpec(), width, height));
     }
 
@@ -450,21 +585,42 @@ public final class SensorPipeline {
         }
     }
 
-    /** Publishes every grid frame with time <= {@code upToUs}; stale ones except the newest are skipped. */
+    /**
+     * Publishes every grid frame with time <= {@code upToUs}; stale ones except the newest are
+     * skipped. Stale frames are skipped by arithmetic, not one by one, so a long gap costs no more
+     * than a short one: the loop only ever visits frames that are still within the budget.
+     */
     private void emitDueFrames(long upToUs) {
-        long nowUs = clock.monotonicNanos() / 1000;
-        while (nextFrameUs <= upToUs) {
-            long t = nextFrameUs;
-            long following = frameTime(frameIndex + 1, rateHz);
-            boolean stale = nowUs - clockMapper.toHostUs(t) > budgetUs;
-            if (stale && following <= upToUs) {
-                counters.increment(NodeCounter.FRAMES_SKIPPED);
-            } else {
-                readoutAndPublish(t, frameIndex);
-            }
-            frameIndex++;
-            nextFrameUs = following;
+        if (nextFrameUs > upToUs) {
+            return;
         }
+        long lastDue = indexAtOrBefore(upToUs, rateHz);
+        // Frames before this sensor time are older than the budget now (stale).
+        long freshFromUs = clock.monotonicNanos() / 1000 - budgetUs - clockMapper.offsetUs();
+        long firstFresh = clockMapper.ready() ? indexAtOrBefore(freshFromUs - 1, rateHz) + 1 : frameIndex;
+        long start = Math.min(Math.max(frameIndex, firstFresh), lastDue);
+        if (start > frameIndex) {
+            counters.add(NodeCounter.FRAMES_SKIPPED, start - frameIndex);
+            frameIndex = start;
+            nextFrameUs = frameTime(frameIndex, rateHz);
+        }
+        while (frameIndex <= lastDue) {
+            readoutAndPublish(nextFrameUs, frameIndex);
+            frameIndex++;
+            nextFrameUs = frameTime(frameIndex, rateHz);
+        }
+    }
+
+    /** The largest grid index whose frame time is at or before {@code timeUs}. */
+    private static long indexAtOrBefore(long timeUs, double rateHz) {
+        long k = (long) Math.floor(timeUs * rateHz / 1e6);
+        while (frameTime(k + 1, rateHz) <= timeUs) {
+            k++;
+        }
+        while (frameTime(k, rateHz) > timeUs) {
+            k--;
+        }
+        return k;
     }
 
     private void onIdleTick() {
@@ -480,17 +636,27 @@ public final class SensorPipeline {
     }
 
     private void onSensorFrame(SensorFrame f) {
-        if (f.getWidth() != width || f.getHeight() != height) {
+        if (f.getWidth() != width || f.getHeight() != height) { // unsigned on the wire: a huge value reads negative, still unequal
             counters.increment(NodeCounter.GEOMETRY_MISMATCH);
+            counters.increment(NodeCounter.SENSOR_FRAMES_REJECTED);
+            return;
+        }
+        long start = f.getExposureStartUs();
+        long end = f.getExposureEndUs();
+        boolean timesInRange = start >= 0 && end >= start && end <= MAX_SENSOR_TIME_US;
+        long mid = start + (end - start) / 2;
+        if (!timesInRange || (clockMapper.ready()
+                && mid - (clock.monotonicNanos() / 1000 - clockMapper.offsetUs()) > timeline.maxAheadUs())
+                || (lastFrameUs != Long.MIN_VALUE && mid < lastFrameUs - RESTART_THRESHOLD_US)) {
+            counters.increment(NodeCounter.SENSOR_FRAMES_REJECTED);
             return;
         }
         if (chain.reconstruction() instanceof ComplementaryFilter fusion) {
-            long mid = (f.getExposureStartUs() + f.getExposureEndUs()) / 2;
             try {
                 fusion.applyFrame(mid, f.getPixels().asReadOnlyByteBuffer(), f.getBitDepth());
                 lastSensorFrameUs = mid;
             } catch (IllegalArgumentException e) {
-                counters.increment(NodeCounter.PACKETS_MALFORMED);
+                counters.increment(NodeCounter.SENSOR_FRAMES_REJECTED);
             }
         }
     }

@@ -1,25 +1,40 @@
 package dev.afterglow.node.pipeline;
 
-import dev.afterglow.node.config.ConfigException;
+import dev.afterglow.node.config.AccessConfig;
 import dev.afterglow.node.config.NodeConfig;
 import dev.afterglow.node.config.SensorConfig;
+import dev.afterglow.node.guard.ConnectionGuard;
 import dev.afterglow.node.publish.FramePublisher;
 import dev.afterglow.node.stats.Counters;
 import dev.afterglow.node.stats.NodeCounter;
+import dev.afterglow.node.stats.OnceLog;
 import dev.afterglow.proto.v1.SensorHello;
 import io.netty.channel.Channel;
 import io.netty.channel.EventLoopGroup;
+import java.nio.charset.StandardCharsets;
+import java.security.MessageDigest;
 import java.util.Collection;
 import java.util.Map;
 import java.util.concurrent.ConcurrentHashMap;
+import java.util.regex.Pattern;
 
 /**
  * The node's sensors: listed sensors get their pipeline at start; an unlisted sensor gets one at
- * its first hello if the configuration accepts unlisted sensors. A sensor keeps its pipeline (and
- * reconstruction state) across reconnects; a new TCP connection for a sensor takes over from an
- * old one, which is closed. Thread-safe.
+ * its first hello if the configuration accepts unlisted sensors, within the limits on sensor count,
+ * pixels and memory. A sensor keeps its pipeline (and reconstruction state) across reconnects.
+ * A hello for a sensor that is connected is refused, unless the policy is {@code replace} and the
+ * newcomer authenticates with the sensor's token, or the old connection has read nothing for the
+ * hello timeout (its peer is most likely gone). Unlisted sensors idle for
+ * {@code limits.sensor-idle-evict-s} are forgotten ({@link #evictIdle}). Thread-safe.
  */
 public final class SensorRegistry {
+    /** Sensor ids: what a metrics label and a log line can carry safely. */
+    private static final Pattern SENSOR_ID = Pattern.compile("[A-Za-z0-9._:-]{1,64}");
+    /** Estimated bytes of state per pixel (reconstruction, denoise maps, readout buffers), rounded up. */
+    static final long STATE_BYTES_PER_PIXEL = 48;
+    /** Share of the heap that sensor state may take; the rest is for packets, frames and the JVM. */
+    private static final double HEAP_SHARE_FOR_SENSORS = 0.6;
+
     /** Outcome of a hello: the sensor's pipeline, or an error code and message for the peer. */
     public record Attach(SensorPipeline pipeline, String errorCode, String message) {
         static Attach error(String code, String message) {
@@ -35,6 +50,7 @@ public final class SensorRegistry {
     private final Map<String, SensorPipeline> sensors = new ConcurrentHashMap<>();
     private final Map<String, Counters> sensorCounters = new ConcurrentHashMap<>();
     private final Map<String, Channel> activeTcp = new ConcurrentHashMap<>();
+    private final long heapBudgetBytes;
 
     public SensorRegistry(NodeConfig config, EventLoopGroup pipelineGroup, FramePublisher publisher, NodeClock clock,
             Counters nodeCounters) {
@@ -43,6 +59,7 @@ public final class SensorRegistry {
         this.publisher = publisher;
         this.clock = clock;
         this.nodeCounters = nodeCounters;
+        this.heapBudgetBytes = (long) (Runtime.getRuntime().maxMemory() * HEAP_SHARE_FOR_SENSORS);
         for (SensorConfig s : config.sensors) {
             create(s);
         }
@@ -51,45 +68,111 @@ public final class SensorRegistry {
     private SensorPipeline create(SensorConfig s) {
         Counters c = sensorCounters.computeIfAbsent(s.id, k -> new Counters());
         SensorPipeline p = new SensorPipeline(s, pipelineGroup.next(), publisher, clock, c,
-                config.limits.maxPendingPackets, config.limits.maxPendingBytes, config.limits.maxEventsPerPacket);
+                config.limits.maxPendingPackets, config.limits.maxPendingBytes, config.limits.maxEventsPerPacket,
+                config.limits.maxTimeAheadMs * 1000L);
         sensors.put(s.id, p);
         return p;
+    }
+
+    /** Estimated bytes a sensor of this size holds (state per pixel plus its first work batches). */
+    static long estimatedBytes(long pixels) {
+        return pixels * STATE_BYTES_PER_PIXEL + 2 * 13L * (1 << 14);
     }
 
     /** Binds a TCP connection that sent {@code hello} to its sensor. */
     public synchronized Attach attach(SensorHello hello, Channel channel) {
         String id = hello.getSensorId();
-        if (id.isBlank()) {
+        if (!SENSOR_ID.matcher(id).matches()) {
             nodeCounters.increment(NodeCounter.UNKNOWN_SENSOR);
-            return Attach.error("bad-hello", "hello without sensor_id");
+            return Attach.error("bad-hello", "sensor_id must be 1 to 64 characters of A-Z a-z 0-9 . _ : -");
         }
+        // Unsigned on the wire: 2^32 - 1 must not read as -1.
+        long width = Integer.toUnsignedLong(hello.getWidth());
+        long height = Integer.toUnsignedLong(hello.getHeight());
         SensorPipeline p = sensors.get(id);
+        SensorConfig settings = p != null ? p.config() : config.sensorDefaults;
+        boolean authenticated = settings.hasToken() && tokenMatches(settings.token, hello.getToken());
+        if (settings.hasToken() && !authenticated) {
+            nodeCounters.increment(NodeCounter.AUTH_REFUSED);
+            OnceLog.warn("auth:" + id, "sensor " + id + ": hello with a wrong or missing token refused from "
+                    + channel.remoteAddress(), null);
+            return Attach.error("unauthorized", "sensor " + id + " needs its token");
+        }
         if (p == null) {
             if (!config.acceptUnlistedSensors) {
                 nodeCounters.increment(NodeCounter.UNKNOWN_SENSOR);
                 return Attach.error("unknown-sensor", "sensor " + id + " is not listed and accept-unlisted-sensors is false");
             }
+            Attach refused = checkNewSensor(width, height);
+            if (refused != null) {
+                nodeCounters.increment(NodeCounter.SENSORS_REFUSED);
+                return refused;
+            }
             try {
-                SensorConfig s = config.sensorDefaults.forSensor(id, hello.getWidth(), hello.getHeight());
-                if (s.width < 1 || s.width > 32768 || s.height < 1 || s.height > 32768) {
-                    throw new ConfigException("geometry " + s.width + "x" + s.height + " outside 1x1 .. 32768x32768");
-                }
-                p = create(s);
+                p = create(config.sensorDefaults.forSensor(id, (int) width, (int) height));
             } catch (IllegalArgumentException e) {
                 nodeCounters.increment(NodeCounter.GEOMETRY_MISMATCH);
                 return Attach.error("bad-geometry", e.getMessage());
             }
-        } else if (p.width() != hello.getWidth() || p.height() != hello.getHeight()) {
+        } else if (p.width() != width || p.height() != height) {
             nodeCounters.increment(NodeCounter.GEOMETRY_MISMATCH);
             return Attach.error("geometry-mismatch", "sensor " + id + " is " + p.width() + "x" + p.height()
-                    + ", hello says " + hello.getWidth() + "x" + hello.getHeight());
+                    + ", hello says " + width + "x" + height);
         }
-        Channel old = activeTcp.put(id, channel);
-        if (old != null && old != channel) {
+        Channel old = activeTcp.get(id);
+        if (old != null && old != channel && old.isActive() && !silent(old)) {
+            boolean replace = config.access.duplicateSensor == AccessConfig.DuplicateSensor.REPLACE && authenticated;
+            if (!replace) {
+                nodeCounters.increment(NodeCounter.DUPLICATE_SENSOR);
+                OnceLog.warn("duplicate:" + id, "sensor " + id + ": second connection from " + channel.remoteAddress()
+                        + " refused; the connected one stays", null);
+                return Attach.error("duplicate-sensor", "sensor " + id + " is already connected"
+                        + (config.access.duplicateSensor == AccessConfig.DuplicateSensor.REPLACE
+                                ? "; a replacing connection must carry the sensor's token" : ""));
+            }
+            activeTcp.put(id, channel);
             old.close();
+        } else {
+            activeTcp.put(id, channel);
         }
         p.setConnected(true);
         return new Attach(p, null, null);
+    }
+
+    /**
+     * True if a connection has read nothing for the hello timeout: its peer is most likely gone
+     * (a sensor that lost its network and reconnects), so a newcomer may take its place.
+     */
+    private boolean silent(Channel ch) {
+        long[] lastRead = ch.attr(ConnectionGuard.LAST_READ).get();
+        return lastRead != null && clock.monotonicNanos() - lastRead[0] > config.limits.helloTimeoutMs * 1_000_000L;
+    }
+
+    /** Why a new unlisted sensor of this size cannot be taken, or null. */
+    private Attach checkNewSensor(long width, long height) {
+        long pixels = width * height;
+        if (width < 1 || height < 1 || width > 65536 || height > 32768 || pixels > config.limits.maxSensorPixels) {
+            return Attach.error("bad-geometry", "geometry " + width + "x" + height + " outside 1x1 .. 65536x32768 or above "
+                    + "limits.max-sensor-pixels=" + config.limits.maxSensorPixels);
+        }
+        if (sensors.size() >= config.limits.maxSensors) {
+            return Attach.error("limit", "sensor limit limits.max-sensors=" + config.limits.maxSensors + " reached");
+        }
+        long held = 0;
+        for (SensorPipeline s : sensors.values()) {
+            held += estimatedBytes((long) s.width() * s.height());
+        }
+        long need = estimatedBytes(pixels);
+        if (held + need > heapBudgetBytes) {
+            return Attach.error("limit", "not enough memory for a " + width + "x" + height + " sensor: about "
+                    + (need >> 20) + " MiB needed, " + ((heapBudgetBytes - held) >> 20) + " MiB left for sensors");
+        }
+        return null;
+    }
+
+    /** Constant-time comparison of a configured token with what a peer sent. */
+    public static boolean tokenMatches(String expected, String given) {
+        return MessageDigest.isEqual(expected.getBytes(StandardCharsets.UTF_8), given.getBytes(StandardCharsets.UTF_8));
     }
 
     /** Unbinds a closed TCP connection. */
@@ -100,6 +183,29 @@ public final class SensorRegistry {
                 p.setConnected(false);
             }
         }
+    }
+
+    /**
+     * Forgets unlisted sensors that have no connection and no input for the configured time; their
+     * counters go with them. Returns how many were forgotten. Any thread.
+     */
+    public synchronized int evictIdle(long nowNanos) {
+        long idleNanos = config.limits.sensorIdleEvictS * 1_000_000_000L;
+        if (idleNanos <= 0) {
+            return 0;
+        }
+        int evicted = 0;
+        for (SensorPipeline p : sensors.values()) {
+            if (config.sensor(p.id()) == null && !p.connected() && !activeTcp.containsKey(p.id())
+                    && nowNanos - p.lastInputNanos() > idleNanos) {
+                sensors.remove(p.id());
+                sensorCounters.remove(p.id());
+                p.close();
+                nodeCounters.increment(NodeCounter.SENSORS_EVICTED);
+                evicted++;
+            }
+        }
+        return evicted;
     }
 
     /** The sensor's pipeline, or null. */

@@ -1,41 +1,57 @@
 package dev.afterglow.node.pipeline;
 
 /**
- * Tracks UDP packet sequence numbers over a window of the 64 newest numbers: detects duplicates,
- * reordering and loss. A number that leaves the window without having arrived counts as lost; a
- * packet older than the window is late (and was already counted lost). Single owner thread.
+ * Tracks UDP packet sequence numbers (unsigned 64-bit) over a window of the 64 newest numbers:
+ * detects duplicates, reordering and loss. A number that leaves the window without having arrived
+ * counts as lost; a packet older than the window is late (and was already counted lost).
+ *
+ * <p>A number more than {@value #MAX_JUMP} away from the newest, either way, is out of step: it is
+ * dropped as late and does not move the window, so one stray or forged number cannot make every
+ * later packet late. If the sender really jumped (it restarted its numbering), its next packets
+ * agree with the jump: after {@value #RESYNC_PACKETS} out-of-step packets in a row that follow on
+ * from each other, the window restarts from them ({@link #takeResyncs()}). Single owner thread.
  */
 final class UdpSequence {
     /** Outcome for one packet. */
     enum Outcome { NEXT, REORDERED, DUPLICATE, LATE }
 
     private static final int WINDOW = 64;
-    private long highest = -1;
+    static final long MAX_JUMP = 4096;
+    static final int RESYNC_PACKETS = 8;
+
+    private boolean started;
+    private long highest;
     /** Bit i set: sequence number {@code highest - i} has arrived. */
     private long seen = -1L;
     private long lostSinceLastCall;
+    private int run;
+    private long runHighest;
+    private long resyncs;
 
     Outcome accept(long seq) {
-        if (highest < 0) {
-            highest = seq;
-            seen = -1L;
+        if (!started) {
+            restartAt(seq);
             return Outcome.NEXT;
         }
-        if (seq > highest) {
-            long shift = seq - highest;
-            if (shift >= WINDOW) {
-                lostSinceLastCall += Long.bitCount(~seen) + (shift - WINDOW);
+        long ahead = seq - highest; // wraps correctly for unsigned numbers
+        if (ahead > MAX_JUMP || ahead < -MAX_JUMP) {
+            return outOfStep(seq);
+        }
+        run = 0;
+        if (ahead > 0) {
+            if (ahead >= WINDOW) {
+                lostSinceLastCall += Long.bitCount(~seen) + (ahead - WINDOW);
                 seen = 1L;
             } else {
-                long leaving = seen >>> (WINDOW - shift);
-                long leavingMask = (1L << shift) - 1;
+                long leaving = seen >>> (WINDOW - ahead);
+                long leavingMask = (1L << ahead) - 1;
                 lostSinceLastCall += Long.bitCount(~leaving & leavingMask);
-                seen = (seen << shift) | 1L;
+                seen = (seen << ahead) | 1L;
             }
             highest = seq;
             return Outcome.NEXT;
         }
-        long back = highest - seq;
+        long back = -ahead;
         if (back >= WINDOW) {
             return Outcome.LATE;
         }
@@ -47,6 +63,30 @@ final class UdpSequence {
         return Outcome.REORDERED;
     }
 
+    private Outcome outOfStep(long seq) {
+        long step = seq - runHighest;
+        if (run > 0 && step > 0 && step <= WINDOW) {
+            run++;
+            runHighest = seq;
+        } else {
+            run = 1;
+            runHighest = seq;
+        }
+        if (run >= RESYNC_PACKETS) {
+            resyncs++;
+            restartAt(seq);
+            return Outcome.NEXT;
+        }
+        return Outcome.LATE;
+    }
+
+    private void restartAt(long seq) {
+        started = true;
+        highest = seq;
+        seen = -1L;
+        run = 0;
+    }
+
     /** Sequence numbers found lost since the previous call. */
     long takeLost() {
         long n = lostSinceLastCall;
@@ -54,9 +94,17 @@ final class UdpSequence {
         return n;
     }
 
+    /** Times the window restarted after a run of out-of-step packets, since the previous call. */
+    long takeResyncs() {
+        long n = resyncs;
+        resyncs = 0;
+        return n;
+    }
+
     void reset() {
-        highest = -1;
+        started = false;
         seen = -1L;
         lostSinceLastCall = 0;
+        run = 0;
     }
 }

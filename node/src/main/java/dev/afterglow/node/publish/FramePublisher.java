@@ -19,23 +19,37 @@ import java.util.List;
 import java.util.Map;
 import java.util.concurrent.ConcurrentHashMap;
 import java.util.concurrent.CopyOnWriteArrayList;
+import java.util.concurrent.atomic.AtomicInteger;
+import java.util.concurrent.atomic.AtomicLong;
+import dev.afterglow.node.stats.OnceLog;
 
 /**
  * Fans frames out to subscribers. For each frame, each distinct request (format, region,
  * downscale) is rendered and encoded once, and the bytes are shared by every subscriber with that
  * request. A subscriber whose connection is not writable (its unsent bytes are above the high
  * water mark) misses the frame, counted, and gets the latest frame once it drains: latest wins, and
- * nobody else waits for it.
+ * nobody else waits for it. Encoded frames queued to subscribers are held to a node-wide budget
+ * ({@code limits.frame-buffer-bytes}, each shared frame counted once); beyond it, the subscribers
+ * that do not read are disconnected (counted) and the others carry on. An error while serving one
+ * subscriber drops that subscriber only.
  *
  * <p>Threading: {@link #publish} runs on the sensor's pipeline thread; subscriptions are added and
  * removed from I/O threads (copy-on-write lists, changes are rare).
  */
 public final class FramePublisher {
     private final NodeClock clock;
+    private final Counters nodeCounters;
+    private final long frameBufferBytes;
+    private final AtomicLong queuedBytes = new AtomicLong();
     private final Map<String, List<Subscription>> bySensor = new ConcurrentHashMap<>();
 
-    public FramePublisher(NodeClock clock) {
+    /**
+     * @param frameBufferBytes budget of encoded frame bytes queued to all subscribers together
+     */
+    public FramePublisher(NodeClock clock, Counters nodeCounters, long frameBufferBytes) {
         this.clock = clock;
+        this.nodeCounters = nodeCounters;
+        this.frameBufferBytes = frameBufferBytes;
     }
 
     /** Adds a subscription. */
@@ -74,7 +88,8 @@ public final class FramePublisher {
     /**
      * Publishes one frame to the sensor's subscribers; returns the number of subscribers written to.
      * When a write reaches the socket, the time since the frame's readout started goes to
-     * {@code writeLatency} (on the subscriber's I/O thread).
+     * {@code writeLatency} (on the subscriber's I/O thread). An error while serving one subscriber
+     * drops that subscriber only (counted, logged once).
      */
     public int publish(FrameData frame, Counters sensorCounters, LatencyRecorder writeLatency) {
         sensorCounters.increment(NodeCounter.FRAMES_PUBLISHED);
@@ -82,39 +97,126 @@ public final class FramePublisher {
         if (subs == null || subs.isEmpty()) {
             return 0;
         }
-        Map<Subscription.RenderKey, ByteBuf> encoded = new HashMap<>(4);
+        Map<Subscription.RenderKey, SharedFrame> encoded = new HashMap<>(4);
         long readoutStart = frame.readoutStartNanos();
         int written = 0;
+        boolean overBudget = false;
         try {
             for (Subscription s : subs) {
-                if (!s.wants(frame.frameIndex(), frame.sensorRateHz())) {
-                    continue;
-                }
-                if (!s.channel.isActive()) {
-                    continue;
-                }
-                if (!s.channel.isWritable()) {
-                    s.countMissed();
-                    sensorCounters.increment(NodeCounter.FRAMES_MISSED);
-                    continue;
-                }
-                ByteBuf bytes = encoded.computeIfAbsent(s.key, k -> encode(frame, k));
-                ChannelPromise sent = s.channel.newPromise();
-                sent.addListener(f -> {
-                    if (f.isSuccess()) {
-                        writeLatency.recordNanos(clock.monotonicNanos() - readoutStart);
+                try {
+                    if (!s.wants(frame.frameIndex(), frame.sensorRateHz()) || !s.channel.isActive()) {
+                        continue;
                     }
-                });
-                s.channel.writeAndFlush(bytes.retainedDuplicate(), sent);
-                s.countDelivered();
-                written++;
+                    if (!s.channel.isWritable()) {
+                        miss(s, sensorCounters);
+                        continue;
+                    }
+                    SharedFrame bytes = encoded.get(s.key);
+                    if (bytes == null) {
+                        bytes = new SharedFrame(encode(frame, s.key));
+                        encoded.put(s.key, bytes);
+                    }
+                    if (queuedBytes.get() + bytes.size > frameBufferBytes && !bytes.queued()) {
+                        overBudget = true;
+                        miss(s, sensorCounters);
+                        continue;
+                    }
+                    write(s, bytes, readoutStart, writeLatency);
+                    s.countDelivered();
+                    written++;
+                } catch (RuntimeException | OutOfMemoryError e) {
+                    drop(s, e);
+                }
             }
         } finally {
-            for (ByteBuf b : encoded.values()) {
-                b.release();
+            for (SharedFrame b : encoded.values()) {
+                b.buf.release();
             }
         }
+        if (overBudget) {
+            dropUnreadingSubscribers();
+        }
         return written;
+    }
+
+    private static void miss(Subscription s, Counters sensorCounters) {
+        s.countMissed();
+        sensorCounters.increment(NodeCounter.FRAMES_MISSED);
+    }
+
+    private void write(Subscription s, SharedFrame bytes, long readoutStart, LatencyRecorder writeLatency) {
+        bytes.retainForWrite();
+        ChannelPromise sent = s.channel.newPromise();
+        sent.addListener(f -> {
+            bytes.writeDone();
+            if (f.isSuccess()) {
+                writeLatency.recordNanos(clock.monotonicNanos() - readoutStart);
+            }
+        });
+        s.channel.writeAndFlush(bytes.buf.retainedDuplicate(), sent);
+    }
+
+    /** An error while serving {@code s}: it is dropped, nobody else is affected. */
+    private void drop(Subscription s, Throwable e) {
+        nodeCounters.increment(NodeCounter.SUBSCRIBER_FAILURES);
+        OnceLog.warn("publish:" + e.getClass().getName(), "subscriber " + s.channel.remoteAddress() + " of sensor "
+                + s.sensorId + " dropped after an unexpected error: " + e, e);
+        remove(s);
+        s.channel.close();
+    }
+
+    /**
+     * Frames queued to subscribers exceed the budget: the subscribers that are not reading (their
+     * connection is unwritable) hold them, so they are disconnected, and those that read carry on.
+     */
+    private void dropUnreadingSubscribers() {
+        for (List<Subscription> list : bySensor.values()) {
+            for (Subscription s : list) {
+                if (!s.channel.isWritable()) {
+                    nodeCounters.increment(NodeCounter.SUBSCRIBERS_DROPPED);
+                    OnceLog.warn("frame-budget", "frames queued to subscribers exceed limits.frame-buffer-bytes="
+                            + frameBufferBytes + "; subscribers that do not read are disconnected", null);
+                    remove(s);
+                    s.channel.close();
+                }
+            }
+        }
+    }
+
+    /** Bytes of encoded frames currently queued to subscribers, each frame counted once however many share it. */
+    public long queuedBytes() {
+        return queuedBytes.get();
+    }
+
+    /**
+     * One encoded frame shared by every subscriber with the same request: its bytes count toward
+     * the budget once, from its first write until its last write has completed.
+     */
+    private final class SharedFrame {
+        final ByteBuf buf;
+        final int size;
+        private final AtomicInteger writes = new AtomicInteger();
+
+        SharedFrame(ByteBuf buf) {
+            this.buf = buf;
+            this.size = buf.readableBytes();
+        }
+
+        boolean queued() {
+            return writes.get() > 0;
+        }
+
+        void retainForWrite() {
+            if (writes.getAndIncrement() == 0) {
+                queuedBytes.addAndGet(size);
+            }
+        }
+
+        void writeDone() {
+            if (writes.decrementAndGet() == 0) {
+                queuedBytes.addAndGet(-size);
+            }
+        }
     }
 
     private ByteBuf encode(FrameData f, Subscription.RenderKey k) {
@@ -143,8 +245,10 @@ public final class FramePublisher {
                 .setPixels(UnsafeByteOperations.unsafeWrap(pixels))
                 .setProvenance(p)
                 .build();
-        // Pooled: the buffer goes back to the pool once every subscriber's write has completed.
-        return Envelopes.delimited(Envelope.newBuilder()
+        // Pooled and direct: the socket writes these very bytes for every subscriber (a heap buffer
+        // would be copied into a direct one per connection), and the buffer goes back to the pool
+        // once every subscriber's write has completed.
+        return Envelopes.delimitedDirect(Envelope.newBuilder()
                 .setSchemaVersion(Envelopes.SCHEMA_VERSION)
                 .setIntensityFrame(frame)
                 .build(), PooledByteBufAllocator.DEFAULT);

@@ -6,10 +6,9 @@ import dev.afterglow.node.pipeline.SensorPipeline;
 import dev.afterglow.node.pipeline.SensorRegistry;
 import dev.afterglow.node.stats.Counters;
 import dev.afterglow.node.stats.NodeCounter;
+import dev.afterglow.node.stats.OnceLog;
 import dev.afterglow.node.wire.Envelopes;
 import dev.afterglow.proto.v1.Envelope;
-import dev.afterglow.proto.v1.PixelFormat;
-import dev.afterglow.proto.v1.Region;
 import dev.afterglow.proto.v1.Subscribe;
 import io.netty.buffer.ByteBuf;
 import io.netty.channel.ChannelHandlerContext;
@@ -17,25 +16,35 @@ import io.netty.channel.SimpleChannelInboundHandler;
 
 /**
  * A subscriber's connection: the first envelope must be a valid {@link Subscribe} for a known
- * sensor; the node then writes intensity frames until either side closes. A bad request is
- * answered with an error report and the connection closed. Disconnecting removes the subscription.
+ * sensor ({@link SubscribeRequest}), with a token when the node lists subscriber tokens; the node
+ * then writes intensity frames until either side closes. A bad request is answered with an error
+ * report and the connection closed. Disconnecting removes the subscription.
  */
 public final class SubscriberHandler extends SimpleChannelInboundHandler<ByteBuf> {
     private final SensorRegistry registry;
     private final FramePublisher publisher;
     private final int maxSubscribers;
     private final Counters nodeCounters;
+    private final SubscriberAccess access;
+    private final Runnable onMessage;
     private Subscription subscription;
 
-    public SubscriberHandler(SensorRegistry registry, FramePublisher publisher, int maxSubscribers) {
+    /**
+     * @param onMessage called for every whole message (connection timeouts)
+     */
+    public SubscriberHandler(SensorRegistry registry, FramePublisher publisher, int maxSubscribers,
+            SubscriberAccess access, Runnable onMessage) {
         this.registry = registry;
         this.publisher = publisher;
         this.maxSubscribers = maxSubscribers;
         this.nodeCounters = registry.nodeCounters();
+        this.access = access;
+        this.onMessage = onMessage;
     }
 
     @Override
     protected void channelRead0(ChannelHandlerContext ctx, ByteBuf msg) {
+        onMessage.run();
         Envelope envelope;
         try {
             envelope = Envelopes.parse(msg);
@@ -48,6 +57,14 @@ public final class SubscriberHandler extends SimpleChannelInboundHandler<ByteBuf
             return;
         }
         Subscribe s = envelope.getSubscribe();
+        String refused = access.check(s.getToken(), s.getSensorId());
+        if (refused != null) {
+            nodeCounters.increment(NodeCounter.AUTH_REFUSED);
+            OnceLog.warn("auth-subscriber:" + ctx.channel().remoteAddress(), "subscriber from " + ctx.channel().remoteAddress()
+                    + " refused: " + refused, null);
+            reject(ctx, "unauthorized", refused);
+            return;
+        }
         SensorPipeline sensor = registry.get(s.getSensorId());
         if (sensor == null) {
             reject(ctx, "unknown-sensor", "no sensor " + s.getSensorId() + " (it must be listed or have connected)");
@@ -57,42 +74,15 @@ public final class SubscriberHandler extends SimpleChannelInboundHandler<ByteBuf
             reject(ctx, "limit", "subscriber limit " + maxSubscribers + " reached");
             return;
         }
-        // Resolve the defaults once (whole sensor, no downscale, 8-bit), then check what was resolved.
-        Region r = s.getRegion();
-        boolean whole = r.getWidth() == 0 && r.getHeight() == 0;
-        int x = whole ? 0 : r.getX();
-        int y = whole ? 0 : r.getY();
-        int w = whole ? sensor.width() : r.getWidth();
-        int h = whole ? sensor.height() : r.getHeight();
-        int downscale = s.getDownscale() == 0 ? 1 : s.getDownscale();
-        PixelFormat format = s.getFormat() == PixelFormat.PIXEL_FORMAT_UNSPECIFIED ? PixelFormat.PIXEL_FORMAT_GRAY8 : s.getFormat();
-        String problem = check(s, format, x, y, w, h, downscale, sensor);
-        if (problem != null) {
-            reject(ctx, "bad-subscribe", problem);
+        SubscribeRequest.Outcome outcome = SubscribeRequest.resolve(s, sensor.width(), sensor.height());
+        if (outcome.problem() != null) {
+            reject(ctx, "bad-subscribe", outcome.problem());
             return;
         }
-        subscription = new Subscription(ctx.channel(), sensor.id(), format, x, y, w, h, downscale, s.getRateHz());
+        SubscribeRequest r = outcome.request();
+        subscription = new Subscription(ctx.channel(), sensor.id(), r.format(), r.x(), r.y(), r.width(), r.height(),
+                r.downscale(), r.rateHz());
         publisher.add(subscription);
-    }
-
-    /** Returns what is wrong with the request (its defaults already resolved), or null. */
-    private static String check(Subscribe s, PixelFormat format, int x, int y, int w, int h, int ds, SensorPipeline sensor) {
-        if (!(s.getRateHz() >= 0 && s.getRateHz() <= 1000)) {
-            return "rate_hz=" + s.getRateHz() + " outside [0, 1000]";
-        }
-        if (ds > 16) {
-            return "downscale=" + ds + " > 16";
-        }
-        if (format != PixelFormat.PIXEL_FORMAT_GRAY8 && format != PixelFormat.PIXEL_FORMAT_LOG_F32) {
-            return "format " + s.getFormatValue() + " unknown";
-        }
-        if (w < 1 || h < 1 || (long) x + w > sensor.width() || (long) y + h > sensor.height()) {
-            return "region " + x + "," + y + " " + w + "x" + h + " outside the sensor's " + sensor.width() + "x" + sensor.height();
-        }
-        if (w / ds < 1 || h / ds < 1) {
-            return "downscale=" + ds + " larger than the region " + w + "x" + h;
-        }
-        return null;
     }
 
     private void reject(ChannelHandlerContext ctx, String code, String message) {
@@ -110,8 +100,15 @@ public final class SubscriberHandler extends SimpleChannelInboundHandler<ByteBuf
 
     @Override
     public void exceptionCaught(ChannelHandlerContext ctx, Throwable cause) {
-        if (!(cause instanceof java.io.IOException)) {
-            nodeCounters.increment(NodeCounter.INTERNAL_ERRORS);
+        Throwable c = cause instanceof io.netty.handler.codec.DecoderException && cause.getCause() != null ? cause.getCause() : cause;
+        if (c instanceof io.netty.handler.codec.TooLongFrameException || c instanceof io.netty.handler.codec.CorruptedFrameException) {
+            reject(ctx, "oversized", c.getMessage());
+            return;
+        }
+        if (!(c instanceof java.io.IOException)) {
+            nodeCounters.increment(NodeCounter.SUBSCRIBER_FAILURES);
+            OnceLog.warn("subscriber:" + c.getClass().getName(), "subscriber " + ctx.channel().remoteAddress()
+                    + " dropped after an unexpected error: " + c, c);
         }
         ctx.close();
     }

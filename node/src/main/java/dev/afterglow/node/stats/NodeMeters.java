@@ -10,6 +10,7 @@ import io.micrometer.core.instrument.Gauge;
 import io.micrometer.core.instrument.MeterRegistry;
 import io.micrometer.core.instrument.Tags;
 import java.util.HashMap;
+import java.util.List;
 import java.util.Map;
 
 /**
@@ -35,6 +36,7 @@ public final class NodeMeters {
     private final Map<String, Bound> bound = new HashMap<>();
 
     private static final class Bound {
+        SensorPipeline pipeline;
         StageTimers timers;
         ChainMeters chainMeters;
     }
@@ -55,12 +57,23 @@ public final class NodeMeters {
         refresh();
     }
 
-    /** Registers meters for sensors that appeared and rebinds stage counters of replaced chains. */
+    /**
+     * Registers meters for sensors that appeared, removes those of sensors that were forgotten
+     * (idle eviction) and rebinds stage counters of replaced chains.
+     */
     public synchronized void refresh() {
+        for (var it = bound.entrySet().iterator(); it.hasNext();) {
+            var e = it.next();
+            if (sensors.get(e.getKey()) != e.getValue().pipeline) {
+                unbind(e.getKey());
+                it.remove();
+            }
+        }
         for (SensorPipeline p : sensors.all()) {
             Bound b = bound.get(p.id());
             if (b == null) {
                 b = new Bound();
+                b.pipeline = p;
                 bind(p);
                 bound.put(p.id(), b);
             }
@@ -71,6 +84,15 @@ public final class NodeMeters {
                 }
                 b.timers = timers;
                 b.chainMeters = ChainMeters.bind(registry, p.id(), timers.chain(), timers);
+            }
+        }
+    }
+
+    /** Removes every meter tagged with this sensor. */
+    private void unbind(String sensorId) {
+        for (io.micrometer.core.instrument.Meter m : List.copyOf(registry.getMeters())) {
+            if (sensorId.equals(m.getId().getTag("sensor"))) {
+                registry.remove(m);
             }
         }
     }

@@ -26,6 +26,11 @@ public final class BoundedVarintFrameDecoder extends ByteToMessageDecoder {
         this.onTruncated = onTruncated;
     }
 
+    /** True while bytes of a message that is not complete yet are buffered. */
+    public boolean hasPartial() {
+        return internalBuffer().isReadable();
+    }
+
     @Override
     protected void decodeLast(ChannelHandlerContext ctx, ByteBuf in, List<Object> out) throws Exception {
         decode(ctx, in, out);

@@ -37,6 +37,38 @@ public final class Envelopes {
         }
     }
 
+    /** The envelope with its varint length prefix, in a direct buffer from {@code alloc} (release it when sent). */
+    public static ByteBuf delimitedDirect(Envelope envelope, ByteBufAllocator alloc) {
+        int size = envelope.getSerializedSize();
+        int total = CodedOutputStream.computeUInt32SizeNoTag(size) + size;
+        ByteBuf buf = alloc.directBuffer(total, total);
+        try {
+            CodedOutputStream out = CodedOutputStream.newInstance(buf.nioBuffer(buf.writerIndex(), total));
+            out.writeUInt32NoTag(size);
+            envelope.writeTo(out);
+            out.flush();
+            out.checkNoSpaceLeft();
+            buf.writerIndex(buf.writerIndex() + total);
+            return buf;
+        } catch (IOException | RuntimeException e) {
+            buf.release();
+            throw new IllegalStateException("encoding into an exactly sized buffer failed", e);
+        }
+    }
+
+    /** Parses one envelope from {@code bytes} (a sealed datagram's inner envelope); bytes fields alias it. */
+    public static Envelope parse(com.google.protobuf.ByteString bytes) throws InvalidProtocolBufferException {
+        CodedInputStream in = bytes.newCodedInput();
+        in.enableAliasing(true);
+        try {
+            return Envelope.parseFrom(in);
+        } catch (InvalidProtocolBufferException e) {
+            throw e;
+        } catch (IOException e) {
+            throw new InvalidProtocolBufferException(e);
+        }
+    }
+
     /** The envelope with its varint length prefix, in a new heap buffer. */
     public static ByteBuf delimited(Envelope envelope) {
         return delimited(envelope, UnpooledByteBufAllocator.DEFAULT);

@@ -30,11 +30,22 @@ class ServeLifecycleTest {
         Path config = dir.resolve("node.yaml");
         Files.writeString(config, """
                 listen: {ingest-tcp-port: 0, ingest-udp-port: 0, subscriber-port: 0, http-port: 0}
+                control: {enabled: true, token: "control-token-never-printed"}
                 sensors: [{id: dock, width: 32, height: 24, frame-rate-hz: 50}]
                 """);
         Process p = new ProcessBuilder(Path.of(System.getProperty("java.home"), "bin", "java").toString(),
                 "-cp", System.getProperty("java.class.path"), "dev.afterglow.node.AfterglowCli", "serve", "--config", config.toString())
                 .redirectErrorStream(true).start();
+        try {
+            serveAndStop(p);
+        } finally {
+            // Whatever happened above, no node process outlives the test.
+            p.destroyForcibly();
+            p.waitFor(10, TimeUnit.SECONDS);
+        }
+    }
+
+    private static void serveAndStop(Process p) throws Exception {
         List<String> lines = new ArrayList<>();
         BufferedReader out = new BufferedReader(new InputStreamReader(p.getInputStream(), StandardCharsets.UTF_8));
         Pattern listening = Pattern.compile("afterglow: listening on 127\\.0\\.0\\.1 +sensors tcp:(\\d+) udp:(\\d+) +subscribers tcp:(\\d+)");
@@ -49,6 +60,7 @@ class ServeLifecycleTest {
         assertTrue(m != null && m.matches(), String.join("\n", lines));
         String printed = String.join("\n", lines);
         assertTrue(printed.contains("effective configuration") && printed.contains("id: \"dock\""), printed);
+        assertTrue(!printed.contains("control-token-never-printed") && printed.contains("<redacted>"), "secrets redacted: " + printed);
         int ingest = Integer.parseInt(m.group(1));
         int subscribers = Integer.parseInt(m.group(3));
 
@@ -57,14 +69,18 @@ class ServeLifecycleTest {
             sub.setTimeoutMillis(10_000);
             EventBatch b = new EventBatch(4);
             long start = System.nanoTime();
-            for (int k = 0; k < 5; k++) {
+            // Half a second of events: on a loaded machine the first frames may pass before the
+            // subscription is in place, or be skipped as stale, so any frame on the grid will do.
+            for (int k = 0; k < 25; k++) {
                 StreamingEndToEndTest.paceRealTime(start, k * 20_000L + 1);
                 b.reset(k * 20_000L);
                 b.add(k, 1, k * 20_000L + 1, 1);
                 sensor.sendEvents(b);
                 sensor.flush();
             }
-            assertEquals(20_000, sub.next().getFrameTimeUs(), "the node serves frames");
+            long frameTime = sub.next().getFrameTimeUs();
+            assertTrue(frameTime > 0 && frameTime % 20_000 == 0 && frameTime <= 480_001,
+                    "the node serves frames on its 50 Hz grid: " + frameTime);
 
             StringBuilder rest = new StringBuilder();
             Thread drain = new Thread(() -> {

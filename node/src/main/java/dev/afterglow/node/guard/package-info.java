@@ -1,0 +1,2 @@
+/** Connection-level protection shared by every TCP listener: per-address limits and timeouts. */
+package dev.afterglow.node.guard;
