@@ -252,10 +252,10 @@ final class LegitRun implements AutoCloseable {
         }
         String summary = "legit " + sensor.id + ": frames " + received + "/" + expected + ", " + counts + ", metrics scrapes "
                 + watch.scrapes() + " slowest " + watch.slowestMs() + " ms, max RSS " + watch.maxRssMb() + " MiB";
-        System.out.println(summary);
+        System.out.println(summary + "\n  counters: " + after.sensorCounters(sensor.id));
         if (!failures.isEmpty()) {
             throw new AssertionError("the attack harmed the legitimate sensor or the node (" + summary + "):\n - "
-                    + String.join("\n - ", failures));
+                    + String.join("\n - ", failures) + "\n   the sensor's counters at the end: " + after.sensorCounters(sensor.id));
         }
     }
 

@@ -147,6 +147,17 @@ final class Scrape {
         return out;
     }
 
+    /** The sensor's counters ({@code _total}, without the common prefix) that are not zero, for messages. */
+    String sensorCounters(String sensor) {
+        java.util.TreeMap<String, Long> out = new java.util.TreeMap<>();
+        for (Sample s : samples) {
+            if (s.name.endsWith("_total") && sensor.equals(s.labels.get("sensor")) && s.labels.size() == 1 && s.value != 0) {
+                out.merge(s.name.replaceFirst("^afterglow_", "").replaceFirst("_total$", ""), Math.round(s.value), Long::sum);
+            }
+        }
+        return out.toString();
+    }
+
     int size() {
         return samples.size();
     }
