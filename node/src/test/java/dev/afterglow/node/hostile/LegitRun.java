@@ -56,10 +56,16 @@ final class LegitRun implements AutoCloseable {
 
     /** Starts the sensor, waits until the node knows it, subscribes, and waits for a second of frames. */
     static LegitRun start(NodeFixture fixture, String sensorId, LegitSensor.Transport transport, String token) throws Exception {
+        return start(fixture, sensorId, transport, token, 0, 0);
+    }
+
+    /** {@link #start(NodeFixture, String, LegitSensor.Transport, String)} with a late start of the sensor's packets. */
+    static LegitRun start(NodeFixture fixture, String sensorId, LegitSensor.Transport transport, String token, long lateForUs,
+            long delayUs) throws Exception {
         HostileNode node = fixture.node();
         Scrape before = node.metrics(5_000);
         NodeWatch watch = new NodeWatch(node);
-        LegitSensor sensor = LegitSensor.start(node, sensorId, transport, token);
+        LegitSensor sensor = LegitSensor.start(node, sensorId, transport, token, lateForUs, delayUs);
         waitFor(() -> known(node, sensorId), 5_000, "the node to list sensor " + sensorId);
         LegitSubscriber subscriber = LegitSubscriber.start(node, sensorId, LegitSensor.WIDTH, LegitSensor.HEIGHT, RATE_HZ,
                 fixture.budgetMs);

@@ -55,6 +55,8 @@ final class LegitSensor implements AutoCloseable {
     private final Thread sender;
     private volatile Thread listener;
     private volatile boolean running = true;
+    private volatile long lateStartUs;
+    private volatile long lateStartDelayUs;
     private volatile Throwable failure;
     private volatile String nodeInterfered;
 
@@ -86,7 +88,18 @@ final class LegitSensor implements AutoCloseable {
 
     /** Connects and starts streaming. */
     static LegitSensor start(HostileNode node, String id, Transport transport, String token) throws IOException {
+        return start(node, id, transport, token, 0, 0);
+    }
+
+    /**
+     * Connects and starts streaming; the packets of the first {@code lateForUs} of sensor time leave
+     * {@code delayUs} late (a congested path at start), the rest on time.
+     */
+    static LegitSensor start(HostileNode node, String id, Transport transport, String token, long lateForUs, long delayUs)
+            throws IOException {
         LegitSensor s = new LegitSensor(node, id, transport, token);
+        s.lateStartUs = lateForUs;
+        s.lateStartDelayUs = delayUs;
         if (s.tcp != null) {
             s.listener = new Thread(s::listen, "legit-sensor-listen-" + id);
             s.listener.setDaemon(true);
@@ -131,7 +144,8 @@ final class LegitSensor implements AutoCloseable {
                 long t = scene.timeUs();
                 batch.reset(t);
                 scene.step(t + PACKET_US, batch);
-                long wait = startNanos + scene.timeUs() * 1_000 - System.nanoTime();
+                long dueUs = scene.timeUs() + (scene.timeUs() <= lateStartUs ? lateStartDelayUs : 0);
+                long wait = startNanos + dueUs * 1_000 - System.nanoTime();
                 if (wait > 0) {
                     Thread.sleep(wait / 1_000_000, (int) (wait % 1_000_000));
                 }

@@ -41,6 +41,7 @@ class MessageAttackTest {
             sensors:
               - {id: udp-base, width: 160, height: 120, frame-rate-hz: 100, latency-budget-ms: %2$s}
               - {id: udp-seq, width: 160, height: 120, frame-rate-hz: 100, latency-budget-ms: %2$s}
+              - {id: udp-slow, width: 160, height: 120, frame-rate-hz: 100, latency-budget-ms: %2$s}
             """.formatted(CONTROL_TOKEN, BUDGET_MS);
 
     @RegisterExtension
@@ -225,6 +226,34 @@ class MessageAttackTest {
             Thread.sleep(AFTER_MS);
             legit.finish(from, legit.nowUs());
             legit.assertUnharmed(1, 1);
+        }
+    }
+
+    /** Sensor time over which the faulty sensors below send late, and how late: beyond max-time-ahead-ms (500). */
+    static final long LATE_FOR_US = 1_500_000;
+    static final long LATE_BY_US = 800_000;
+
+    @Test
+    @DisplayName("faulty peer (guards the item 5 fix): a TCP sensor whose first 1.5 s of packets arrived 0.8 s late keeps its frames once on time")
+    void shouldFollowTcpSensorWhoseFirstPacketsWereLate() throws Exception {
+        try (LegitRun legit = LegitRun.start(FIXTURE, FIXTURE.freshId("legit"), LegitSensor.Transport.TCP, null, LATE_FOR_US, LATE_BY_US)) {
+            LegitRun.waitFor(() -> legit.nowUs() > LATE_FOR_US + LATE_BY_US, 10_000, "the late start to pass");
+            long from = legit.startWindow();
+            Thread.sleep(BEFORE_MS + AFTER_MS);
+            legit.finish(from, legit.nowUs());
+            legit.assertUnharmed();
+        }
+    }
+
+    @Test
+    @DisplayName("faulty peer (guards the item 5 fix): a UDP sensor whose first 1.5 s of packets arrived 0.8 s late keeps its frames once on time")
+    void shouldFollowUdpSensorWhoseFirstPacketsWereLate() throws Exception {
+        try (LegitRun legit = LegitRun.start(FIXTURE, "udp-slow", LegitSensor.Transport.UDP, null, LATE_FOR_US, LATE_BY_US)) {
+            LegitRun.waitFor(() -> legit.nowUs() > LATE_FOR_US + LATE_BY_US, 10_000, "the late start to pass");
+            long from = legit.startWindow();
+            Thread.sleep(BEFORE_MS + AFTER_MS);
+            legit.finish(from, legit.nowUs());
+            legit.assertUnharmed();
         }
     }
 
