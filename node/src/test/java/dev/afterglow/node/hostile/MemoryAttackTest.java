@@ -33,7 +33,7 @@ class MemoryAttackTest {
     @RegisterExtension
     static final NodeFixture FIXTURE = new NodeFixture(SensorFloodTest.YAML, DIRECT_MB, BUDGET_MS);
 
-    static final int HOLD_MS = 4_000;
+    static final int HOLD_MS = 3_000;
     /** Bytes of the unfinished first message each attacking connection holds. */
     static final int PARTIAL_BYTES = 3 << 20;
 
@@ -50,7 +50,7 @@ class MemoryAttackTest {
                         .setSensorId(legit.sensor.id).setRateHz(0).setFormat(PixelFormat.PIXEL_FORMAT_LOG_F32)).build()));
                 Thread.sleep(HOLD_MS);
             }
-            Thread.sleep(1_500);
+            Thread.sleep(1_000);
             legit.finish(from, legit.nowUs());
             assertAll(legit::assertUnharmed,
                     () -> assertTrue(legit.sensorDelta("afterglow_frames_missed_total") > 0,
@@ -67,7 +67,7 @@ class MemoryAttackTest {
             Partial partial = Partial.hold(FIXTURE.node().ingestTcpPort, 110, 2, 110);
             Thread.sleep(HOLD_MS);
             partial.close();
-            Thread.sleep(1_500);
+            Thread.sleep(1_000);
             legit.finish(from, legit.nowUs());
             assertAll(legit::assertUnharmed,
                     // The contract's default limits.max-connections-per-address is 32.
@@ -86,7 +86,7 @@ class MemoryAttackTest {
             Partial partial = Partial.hold(FIXTURE.node().ingestTcpPort, 112, 2, 28);
             Thread.sleep(HOLD_MS);
             partial.close();
-            Thread.sleep(1_500);
+            Thread.sleep(1_000);
             legit.finish(from, legit.nowUs());
             System.out.println(partial);
             legit.assertUnharmed();

@@ -50,7 +50,7 @@ class MessageAttackTest {
     /** Sensor time the legitimate stream runs before an attack, inside the measured window. */
     static final long BEFORE_MS = 500;
     /** Sensor time the legitimate stream runs after an attack, inside the measured window. */
-    static final long AFTER_MS = 2_500;
+    static final long AFTER_MS = 2_000;
     static final int REPLY_MS = 2_000;
 
     private static HostileNode node() {
