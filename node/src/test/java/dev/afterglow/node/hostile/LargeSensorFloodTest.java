@@ -71,6 +71,7 @@ class LargeSensorFloodTest {
                 }
             }
             int refusedFinal = refused;
+            System.out.println("large sensors: " + refused + " of 5 refused with limit");
             assertAll(legit::assertUnharmed,
                     () -> assertTrue(wrong.isEmpty(), "hellos neither accepted nor refused with limit: " + wrong),
                     () -> assertTrue(legit.nodeDelta("afterglow_sensors_refused_total") == refusedFinal,

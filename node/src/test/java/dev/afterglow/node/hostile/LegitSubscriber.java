@@ -148,8 +148,6 @@ final class LegitSubscriber implements AutoCloseable {
             problemCount++;
             if (problems.size() < 8) {
                 problems.add(what);
-            } else if (problems.size() == 8) {
-                problems.add("(more problems follow; only the first 8 are listed)");
             }
         }
     }
@@ -157,7 +155,11 @@ final class LegitSubscriber implements AutoCloseable {
     /** What was wrong with the frames or the subscription so far. */
     List<String> problems() {
         synchronized (problems) {
-            return new ArrayList<>(problems);
+            List<String> out = new ArrayList<>(problems);
+            if (problemCount > problems.size()) {
+                out.add("... " + (problemCount - problems.size()) + " more problems of these kinds");
+            }
+            return out;
         }
     }
 
