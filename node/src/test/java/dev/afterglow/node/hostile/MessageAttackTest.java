@@ -37,11 +37,15 @@ class MessageAttackTest {
     static final String YAML = """
             listen: {address: 127.0.0.1, ingest-tcp-port: 0, ingest-udp-port: 0, subscriber-port: 0, http-port: 0}
             control: {enabled: true, token: "%s"}
+            # every test streams a fresh legitimate sensor (and some attackers bring their own): room for all of them
+            limits: {max-sensors: 64}
             sensor-defaults: {frame-rate-hz: 100, latency-budget-ms: %2$s}
             sensors:
               - {id: udp-base, width: 160, height: 120, frame-rate-hz: 100, latency-budget-ms: %2$s}
               - {id: udp-seq, width: 160, height: 120, frame-rate-hz: 100, latency-budget-ms: %2$s}
               - {id: udp-slow, width: 160, height: 120, frame-rate-hz: 100, latency-budget-ms: %2$s}
+              - {id: udp-far, width: 160, height: 120, frame-rate-hz: 100, latency-budget-ms: %2$s}
+              - {id: udp-ahead, width: 160, height: 120, frame-rate-hz: 100, latency-budget-ms: %2$s}
             """.formatted(CONTROL_TOKEN, BUDGET_MS);
 
     @RegisterExtension
@@ -114,9 +118,9 @@ class MessageAttackTest {
     }
 
     @Test
-    @DisplayName("item 2 (UDP): a datagram with time_base_us = 2^62 for a known sensor is rejected; the pipeline thread stays free")
+    @DisplayName("item 2 (UDP): a datagram with time_base_us = 2^62 for a known UDP sensor is rejected; the pipeline thread stays free")
     void shouldRejectUdpPacketAt2To62WithoutWedgingPipeline() throws Exception {
-        try (LegitRun legit = tcpLegit()) {
+        try (LegitRun legit = LegitRun.start(FIXTURE, "udp-far", LegitSensor.Transport.UDP, null)) {
             long from = legit.startWindow();
             Thread.sleep(BEFORE_MS);
             Attacker.datagram(2, node().ingestUdpPort,
@@ -169,6 +173,7 @@ class MessageAttackTest {
                 Attacker.send(attacker, Wire.hello(own, 16, 16, null),
                         Wire.packet(own, 0, 1_000, 0x8000_0000, Wire.event(0, 1, 1, true)),
                         Wire.packet(own, 1, 2_000, 0xFFFF_FFFF, Wire.event(0, 1, 1, true)));
+                // A plain datagram for a sensor connected over TCP is refused before anything is read from it.
                 Attacker.datagram(2, node().ingestUdpPort,
                         Wire.packet(legit.sensor.id, 1, now, 0x8000_0000, Wire.event(0, 5, 5, true)).toByteArray());
                 Thread.sleep(AFTER_MS);
@@ -176,8 +181,8 @@ class MessageAttackTest {
                 Scrape s = legit.after();
                 assertAll(() -> legit.assertUnharmed(1L << 31, 0),
                         () -> assertEquals(2, s.count("afterglow_ingest_packets_malformed_total", own), "malformed packets of " + own),
-                        () -> assertEquals(1, legit.sensorDelta("afterglow_ingest_packets_malformed_total"),
-                                "malformed packets of the attacked legitimate sensor"),
+                        () -> assertEquals(1, legit.nodeDelta("afterglow_ingest_udp_refused_total"),
+                                "plain datagrams refused for the legitimate sensor connected over TCP"),
                         () -> assertTrue(s.brokenCounters().isEmpty(), "counters below zero: " + s.brokenCounters()),
                         () -> assertTrue(s.mentions(own) && s.mentions(legit.sensor.id), "a later scrape still lists both sensors"),
                         () -> assertAddsUp(s, own));
@@ -201,7 +206,7 @@ class MessageAttackTest {
     }
 
     @Test
-    @DisplayName("item 5: one datagram stamped 9 s ahead does not stop a TCP sensor")
+    @DisplayName("item 5: one datagram stamped 9 s ahead does not stop a TCP sensor (refused: its connection vouches for its packets)")
     void shouldRejectDatagramNineSecondsAheadAndKeepSensorRunning() throws Exception {
         try (LegitRun legit = tcpLegit()) {
             long from = legit.startWindow();
@@ -211,7 +216,24 @@ class MessageAttackTest {
             Thread.sleep(AFTER_MS);
             legit.finish(from, legit.nowUs());
             assertAll(() -> legit.assertUnharmed(1, 0),
-                    () -> assertEquals(1, legit.sensorDelta("afterglow_ingest_packets_future_total"), "future packets of the sensor"));
+                    () -> assertEquals(1, legit.nodeDelta("afterglow_ingest_udp_refused_total"), "datagrams refused for the TCP sensor"));
+        }
+    }
+
+    @Test
+    @DisplayName("item 5 (UDP): one datagram stamped 9 s ahead is rejected as future and does not stop a UDP sensor")
+    void shouldRejectDatagramNineSecondsAheadForAUdpSensor() throws Exception {
+        try (LegitRun legit = LegitRun.start(FIXTURE, "udp-ahead", LegitSensor.Transport.UDP, null)) {
+            long from = legit.startWindow();
+            Thread.sleep(BEFORE_MS);
+            Attacker.datagram(2, node().ingestUdpPort, Wire.packet("udp-ahead", 1L << 40, legit.nowUs() + 9_000_000, 1,
+                    Wire.event(0, 10, 10, true)).toByteArray());
+            Thread.sleep(AFTER_MS);
+            legit.finish(from, legit.nowUs());
+            assertAll(() -> legit.assertUnharmed(1, 0),
+                    () -> assertTrue(legit.sensorDelta("afterglow_ingest_packets_future_total")
+                            + legit.sensorDelta("afterglow_ingest_udp_late_packets_total") >= 1,
+                            "the datagram was rejected by its time or its sequence number"));
         }
     }
 
