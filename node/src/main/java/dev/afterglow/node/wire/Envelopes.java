@@ -26,15 +26,7 @@ public final class Envelopes {
      * views of that array, not second copies: the hot path's only per-packet allocation.
      */
     public static Envelope parse(ByteBuf buf) throws InvalidProtocolBufferException {
-        CodedInputStream in = UnsafeByteOperations.unsafeWrap(ByteBufUtil.getBytes(buf)).newCodedInput();
-        in.enableAliasing(true);
-        try {
-            return Envelope.parseFrom(in);
-        } catch (InvalidProtocolBufferException e) {
-            throw e;
-        } catch (IOException e) { // an in-memory input only fails with the above
-            throw new InvalidProtocolBufferException(e);
-        }
+        return parse(UnsafeByteOperations.unsafeWrap(ByteBufUtil.getBytes(buf)));
     }
 
     /** The envelope with its varint length prefix, in a direct buffer from {@code alloc} (release it when sent). */

@@ -45,7 +45,8 @@ class MalformedInputTest {
                 accept-unlisted-sensors: false
                 sensors:
                   - {id: good, width: %d, height: %d, frame-rate-hz: 100, latency-budget-ms: 5000}
-                """.formatted(W, H), "test");
+                  - {id: quiet, width: %d, height: %d}
+                """.formatted(W, H, W, H), "test");
         List<EventBatch> packets = SceneEvents.packets(W, H, 3_000_000, 1_000, 3);
         try (AfterglowNode node = AfterglowNode.start(config);
                 SubscriberClient sub = SubscriberClient.connect("127.0.0.1", node.subscriberPort(), "good", 0,
@@ -110,7 +111,8 @@ class MalformedInputTest {
             assertEquals(1, nodeCounters.get(NodeCounter.UNKNOWN_SENSOR));
 
             // 5. Garbage datagram, a datagram for an unknown sensor, a packet whose length does not match its count,
-            //    and events outside the sensor.
+            //    and events outside the sensor (for the UDP sensor "quiet"), and a plain datagram for "good", which
+            //    is connected over TCP: its connection vouches for its packets, so the datagram is refused.
             try (DatagramSocket udp = new DatagramSocket()) {
                 InetSocketAddress to = new InetSocketAddress("127.0.0.1", node.ingestUdpPort());
                 byte[] garbage = {(byte) 0xFF, 0x00, 0x13, 0x37, (byte) 0xFF};
@@ -119,7 +121,7 @@ class MalformedInputTest {
                         .setSensorId("ghost").setEventCount(0)).build().toByteArray();
                 udp.send(new DatagramPacket(unknown, unknown.length, to));
                 byte[] mismatch = Envelope.newBuilder().setSchemaVersion(1).setEvents(EventPacket.newBuilder()
-                        .setSensorId("good").setSequence(0).setEventCount(3).setEvents(ByteString.copyFrom(new byte[16])))
+                        .setSensorId("quiet").setSequence(0).setEventCount(3).setEvents(ByteString.copyFrom(new byte[16])))
                         .build().toByteArray();
                 udp.send(new DatagramPacket(mismatch, mismatch.length, to));
                 EventBatch outside = new EventBatch(2);
@@ -127,16 +129,23 @@ class MalformedInputTest {
                 outside.add(W + 5, 0, 0, 1);
                 outside.add(0, H + 5, 0, -1);
                 byte[] outOfRange = Envelope.newBuilder().setSchemaVersion(1).setEvents(EventPacket.newBuilder()
-                        .setSensorId("good").setSequence(1).setTimeBaseUs(outside.timeBaseUs).setEventCount(2)
+                        .setSensorId("quiet").setSequence(1).setTimeBaseUs(outside.timeBaseUs).setEventCount(2)
                         .setEvents(ByteString.copyFrom(dev.afterglow.filters.codec.EventPacketCodec.encode(outside))))
                         .build().toByteArray();
                 udp.send(new DatagramPacket(outOfRange, outOfRange.length, to));
+                byte[] forGood = Envelope.newBuilder().setSchemaVersion(1).setEvents(EventPacket.newBuilder()
+                        .setSensorId("good").setSequence(0).setTimeBaseUs(0).setEventCount(2)
+                        .setEvents(ByteString.copyFrom(dev.afterglow.filters.codec.EventPacketCodec.encode(outside))))
+                        .build().toByteArray();
+                udp.send(new DatagramPacket(forGood, forGood.length, to));
             }
-            var good = node.sensors().get("good").counters();
+            var quiet = node.sensors().get("quiet").counters();
             StreamingEndToEndTest.waitFor(() -> nodeCounters.get(NodeCounter.MESSAGES_MALFORMED) == 2
                     && nodeCounters.get(NodeCounter.UNKNOWN_SENSOR) == 2
-                    && good.get(NodeCounter.PACKETS_MALFORMED) == 1
-                    && good.get(NodeCounter.EVENTS_OUTSIDE_SENSOR) == 2);
+                    && nodeCounters.get(NodeCounter.UDP_REFUSED) == 1
+                    && quiet.get(NodeCounter.PACKETS_MALFORMED) == 1
+                    && quiet.get(NodeCounter.EVENTS_OUTSIDE_SENSOR) == 2);
+            assertEquals(0, node.sensors().get("good").counters().get(NodeCounter.PACKETS_UDP), "nothing of the datagram reached good");
 
             // Meanwhile the good sensor's frames kept coming, in order, one period apart.
             long previous = 0;
