@@ -13,7 +13,8 @@ import picocli.CommandLine.Option;
 
 /** Acts as a sensor: streams a synthetic scene into a running node. */
 @Command(name = "feed", mixinStandardHelpOptions = true,
-        description = "Act as a sensor: stream a synthetic scene into a running node over TCP or UDP.")
+        description = {"Act as a sensor: stream a synthetic scene into a running node over TCP or UDP.",
+                "For a sensor with a token, set AFTERGLOW_SENSOR_TOKEN: it goes in the hello (TCP) or seals every datagram (UDP)."})
 public final class FeedCommand implements Callable<Integer> {
 
     @Option(names = "--node", paramLabel = "HOST:PORT", description = "Node's sensor port (TCP or UDP). Default: ${DEFAULT-VALUE}")
@@ -55,6 +56,9 @@ public final class FeedCommand implements Callable<Integer> {
     @Mixin
     TlsOptions tls = new TlsOptions();
 
+    /** Read from the environment, not an option, so the secret stays out of process listings. */
+    String token = System.getenv().getOrDefault("AFTERGLOW_SENSOR_TOKEN", "");
+
     @Override
     public Integer call() throws Exception {
         HostPort target = HostPort.parse("--node", node);
@@ -77,11 +81,12 @@ public final class FeedCommand implements Callable<Integer> {
         long sent;
         long start = System.nanoTime();
         if (transport.equals("tcp")) {
-            try (SensorClient c = SensorClient.connect(target.host(), target.port(), id, width, height, frames, clientTls)) {
+            try (SensorClient c = SensorClient.connect(target.host(), target.port(),
+                    SensorClient.hello(id, width, height, frames, token), clientTls)) {
                 sent = feed.run(SyntheticFeed.tcp(c), id, seconds, packetUs, speed, frames);
             }
         } else {
-            try (UdpSensorClient c = new UdpSensorClient(target.host(), target.port(), id)) {
+            try (UdpSensorClient c = new UdpSensorClient(target.host(), target.port(), id, token)) {
                 sent = feed.run(SyntheticFeed.udp(c), id, seconds, packetUs, speed, false);
             }
         }

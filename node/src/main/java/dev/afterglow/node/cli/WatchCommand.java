@@ -70,7 +70,8 @@ public final class WatchCommand implements Callable<Integer> {
             }
         }
         try (SubscriberClient client = SubscriberClient.connect(target.host(), target.port(),
-                SubscriberClient.request(sensorId, rate, f, r[0], r[1], r[2], r[3], downscale), tls.clientTls())) {
+                SubscriberClient.request(sensorId, rate, f, r[0], r[1], r[2], r[3], downscale).toBuilder()
+                        .setToken(System.getenv().getOrDefault("AFTERGLOW_SUBSCRIBER_TOKEN", "")).build(), tls.clientTls())) {
             new FrameWatcher(client, System.out, save, saveEvery).run(count);
         }
         return 0;
