@@ -4,6 +4,7 @@ import com.google.protobuf.UnsafeByteOperations;
 import dev.afterglow.node.pipeline.NodeClock;
 import dev.afterglow.node.stats.Counters;
 import dev.afterglow.node.stats.NodeCounter;
+import dev.afterglow.node.stats.OnceLog;
 import dev.afterglow.node.wire.Envelopes;
 import dev.afterglow.proto.v1.Envelope;
 import dev.afterglow.proto.v1.IntensityFrame;
@@ -21,7 +22,6 @@ import java.util.concurrent.ConcurrentHashMap;
 import java.util.concurrent.CopyOnWriteArrayList;
 import java.util.concurrent.atomic.AtomicInteger;
 import java.util.concurrent.atomic.AtomicLong;
-import dev.afterglow.node.stats.OnceLog;
 
 /**
  * Fans frames out to subscribers. For each frame, each distinct request (format, region,
