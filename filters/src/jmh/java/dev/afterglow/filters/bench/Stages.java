@@ -46,8 +46,8 @@ final class Stages {
                 || stage.equals("complementary");
         Chain chain = Chain.build(reconstructs ? description : description + " | direct-integration", width, height);
         EventStage built = chain.stages().get(0);
-        if (built instanceof ComplementaryFilter) {
-            ((ComplementaryFilter) built).applyFrame(frameUs, SyntheticScene.rampFrame(width, height), 8);
+        if (built instanceof dev.afterglow.filters.recon.FrameFusion fusion) {
+            fusion.applyFrame(frameUs, SyntheticScene.rampFrame(width, height), 8);
         }
         return built;
     }

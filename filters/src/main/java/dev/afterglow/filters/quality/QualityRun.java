@@ -5,7 +5,7 @@ import dev.afterglow.filters.chain.Chain;
 import dev.afterglow.filters.chain.ChainSpec;
 import dev.afterglow.filters.readout.ToneMap;
 import dev.afterglow.filters.readout.ToneMapper;
-import dev.afterglow.filters.recon.ComplementaryFilter;
+import dev.afterglow.filters.recon.FrameFusion;
 import dev.afterglow.filters.synth.EventLabel;
 import dev.afterglow.filters.synth.Scene;
 import dev.afterglow.filters.synth.SensorConfig;
@@ -165,13 +165,13 @@ public final class QualityRun {
         int n = w * h;
         int m = s.methods().size();
         Chain[] chains = new Chain[m];
-        ComplementaryFilter[] fusion = new ComplementaryFilter[m];
+        FrameFusion[] fusion = new FrameFusion[m];
         boolean[] filters = new boolean[m];
         MethodResult[] results = new MethodResult[m];
         for (int k = 0; k < m; k++) {
             Method method = s.methods().get(k);
             chains[k] = Chain.build(method.chain(), w, h);
-            fusion[k] = chains[k].reconstruction() instanceof ComplementaryFilter c ? c : null;
+            fusion[k] = chains[k].reconstruction() instanceof FrameFusion c ? c : null;
             filters[k] = chains[k].stages().size() > 1;
             results[k] = new MethodResult(method.label(), method.chain());
         }

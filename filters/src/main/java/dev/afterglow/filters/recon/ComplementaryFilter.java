@@ -24,7 +24,7 @@ import java.nio.ByteBuffer;
  * <p>Threading: single owner thread; frames and events must be applied in time order by that
  * thread.
  */
-public final class ComplementaryFilter implements Reconstruction {
+public final class ComplementaryFilter implements FrameFusion {
     private final int width;
     private final int height;
     private final double contrast;

@@ -7,7 +7,7 @@ import dev.afterglow.filters.chain.ChainSpec;
 import dev.afterglow.filters.codec.DecodeResult;
 import dev.afterglow.filters.codec.EventPacketCodec;
 import dev.afterglow.filters.readout.ToneMapper;
-import dev.afterglow.filters.recon.ComplementaryFilter;
+import dev.afterglow.filters.recon.FrameFusion;
 import dev.afterglow.metrics.LatencyRecorder;
 import dev.afterglow.metrics.StageTimers;
 import dev.afterglow.node.config.SensorConfig;
@@ -660,7 +660,7 @@ public final class SensorPipeline {
             counters.increment(NodeCounter.SENSOR_FRAMES_REJECTED);
             return;
         }
-        if (chain.reconstruction() instanceof ComplementaryFilter fusion) {
+        if (chain.reconstruction() instanceof FrameFusion fusion) {
             try {
                 fusion.applyFrame(mid, f.getPixels().asReadOnlyByteBuffer(), f.getBitDepth());
                 lastSensorFrameUs = mid;

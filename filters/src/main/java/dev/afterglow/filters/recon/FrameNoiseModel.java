@@ -1,0 +1,91 @@
+package dev.afterglow.filters.recon;
+
+/**
+ * Noise of a sensor frame pixel in log intensity, by pixel value, as lookup tables per bit depth
+ * (no per-pixel {@code log}). A pixel value v (0 .. M, M = 2^bits - 1) has variance
+ * {@code g·v + r² + 1/12} in counts: photon shot noise proportional to the signal (gain g counts
+ * per photo-electron), read noise r, and the uniform quantisation noise of one count (1/12 count²)
+ * (common practice; e.g. the EMVA 1288 standard's linear camera model). Its log intensity is
+ * {@code z = ln((v + 1/2) / (M + 1))} and, by the delta method, the variance of z is the count
+ * variance divided by {@code (v + 1/2)²}: dark pixels are uncertain because their relative noise is
+ * large, with no separate threshold. A pixel at or above {@code saturatedFraction·M} carries no
+ * information about how bright the scene is, only that it is at least that bright: it gets
+ * {@link #SATURATED_VARIANCE}. Values are given for 8-bit counts and scaled to other bit depths.
+ * Immutable tables, built on first use per bit depth; single owner thread.
+ */
+public final class FrameNoiseModel {
+    /** Variance (log units²) of a saturated pixel: so large (next to any estimate's, even an unknown one) that its measurement weighs nothing. */
+    public static final double SATURATED_VARIANCE = 1e12;
+
+    private final double shotGain8;
+    private final double readNoise8;
+    private final double saturatedFraction;
+    private int tableBits;
+    private double[] logOf;
+    private double[] varianceOf;
+
+    /**
+     * @param shotGain8 g, counts per photo-electron at 8 bits, [0, 100]
+     * @param readNoise8 r, read noise in counts at 8 bits, [0, 100]
+     * @param saturatedFraction values at or above this fraction of full scale are saturated, (0, 1]
+     */
+    public FrameNoiseModel(double shotGain8, double readNoise8, double saturatedFraction) {
+        if (!(shotGain8 >= 0 && shotGain8 <= 100) || !(readNoise8 >= 0 && readNoise8 <= 100)) {
+            throw new IllegalArgumentException("shot gain " + shotGain8 + " or read noise " + readNoise8 + " outside [0, 100]");
+        }
+        if (!(saturatedFraction > 0 && saturatedFraction <= 1)) {
+            throw new IllegalArgumentException("saturated=" + saturatedFraction + " outside (0, 1]");
+        }
+        this.shotGain8 = shotGain8;
+        this.readNoise8 = readNoise8;
+        this.saturatedFraction = saturatedFraction;
+    }
+
+    /** Log intensity of pixel value {@code v} at {@code bits} per pixel. */
+    public double log(int v, int bits) {
+        prepare(bits);
+        return logOf[v];
+    }
+
+    /** Variance (log units²) of the log intensity of pixel value {@code v} at {@code bits} per pixel. */
+    public double variance(int v, int bits) {
+        prepare(bits);
+        return varianceOf[v];
+    }
+
+    /** The log table for {@code bits} (index: pixel value). */
+    double[] logs(int bits) {
+        prepare(bits);
+        return logOf;
+    }
+
+    /** The variance table for {@code bits} (index: pixel value). */
+    double[] variances(int bits) {
+        prepare(bits);
+        return varianceOf;
+    }
+
+    private void prepare(int bits) {
+        if (bits == tableBits) {
+            return;
+        }
+        if (bits < 8 || bits > 16) {
+            throw new IllegalArgumentException("bit depth " + bits + " outside 8..16");
+        }
+        int max = (1 << bits) - 1;
+        double scale = max / 255.0; // counts at this depth per count at 8 bits
+        double gain = shotGain8 * scale;
+        double read = readNoise8 * scale;
+        double[] logs = new double[max + 1];
+        double[] vars = new double[max + 1];
+        int saturatedAt = (int) Math.ceil(saturatedFraction * max);
+        for (int v = 0; v <= max; v++) {
+            double level = v + 0.5;
+            logs[v] = Math.log(level / (max + 1));
+            vars[v] = v >= saturatedAt ? SATURATED_VARIANCE : (gain * v + read * read + 1.0 / 12) / (level * level);
+        }
+        logOf = logs;
+        varianceOf = vars;
+        tableBits = bits;
+    }
+}

@@ -1,0 +1,210 @@
+package dev.afterglow.filters.recon;
+
+import dev.afterglow.filters.EventBatch;
+import dev.afterglow.filters.StageCounters;
+import java.nio.ByteBuffer;
+import java.nio.ByteOrder;
+
+/**
+ * Per-pixel uncertainty-weighted fusion of events and the sensor's own frames, after the
+ * asynchronous Kalman filter for hybrid event/frame cameras of Z. Wang, Y. Ng, C. Scheerlinck and
+ * R. Mahony (CVPR 2021), in a scalar form of our own: every pixel keeps a log-intensity estimate
+ * {@code x} and its variance {@code P}.
+ * <ul>
+ * <li>Between measurements the scene may change: {@code P} grows by {@code q·dt} (a random walk
+ *     with process noise q, log units² per second), so {@code x} itself does not move and readout
+ *     is a copy, with no {@code exp} anywhere.</li>
+ * <li>An event of polarity p adds {@code p·C} to {@code x} and its own uncertainty {@code R_e} to
+ *     {@code P}: threshold mismatch and the chance that the event is noise.</li>
+ * <li>A frame is a measurement {@code z} with variance {@code R} from {@link FrameNoiseModel}
+ *     (shot, read and quantisation noise; saturated pixels weigh nothing), fused with the gain
+ *     {@code K = P/(P + R)}: {@code x += K·(z - x)}, {@code P = (1 - K)·P}.</li>
+ * </ul>
+ * Where frames are good and events few, {@code P} stays small and the estimate holds the frame;
+ * where frames are saturated or dark and noisy, R is large and events carry the pixel. With no
+ * frames at all it is direct integration; with noiseless frames it is the frame.
+ *
+ * <p>Cost: an event is a subtraction of times, two multiply-adds and three array writes; a frame
+ * one pass with a table lookup and a division per pixel; a readout one pass of double to float.
+ * State: 8 bytes each for x, P and the time of the pixel's last update. A frame is applied at the
+ * time given (its mid-exposure), as received: events the node applied after that time are in
+ * {@code x} already and count against the frame for that pixel (the same approximation as the
+ * complementary filter's frame swap).
+ *
+ * <p>Threading: single owner thread; events and frames in time order on that thread.
+ */
+public final class KalmanFusion implements FrameFusion {
+    /** Variance of a pixel nothing is known about yet (log units²). */
+    static final double UNKNOWN_VARIANCE = 1e6;
+
+    private final int width;
+    private final int height;
+    private final double contrast;
+    private final double processNoisePerUs;
+    private final double eventVariance;
+    private final FrameNoiseModel frameNoise;
+    private final double[] estimate;
+    private final double[] variance;
+    private final long[] updatedUs;
+    private final StageCounters counters = new StageCounters();
+    private final String description;
+    private long framesApplied;
+    private long lateEvents;
+
+    /**
+     * @param contrast contrast threshold C in log units, 0.01 .. 2
+     * @param processNoise q, log units² per second the scene may drift, (0, 1e4]
+     * @param eventNoise standard deviation of one event's step as a fraction of C, [0, 10]
+     * @param frameNoise the frames' noise model
+     * @param description the stage's parameters in chain-description syntax
+     */
+    public KalmanFusion(int width, int height, double contrast, double processNoise, double eventNoise,
+            FrameNoiseModel frameNoise, String description) {
+        ReconstructionChecks.contrast("kalman-fusion", contrast);
+        if (!(processNoise > 0 && processNoise <= 1e4)) {
+            throw new IllegalArgumentException("kalman-fusion.process-noise=" + processNoise + " outside (0, 1e4]");
+        }
+        if (!(eventNoise >= 0 && eventNoise <= 10)) {
+            throw new IllegalArgumentException("kalman-fusion.event-noise=" + eventNoise + " outside [0, 10]");
+        }
+        this.width = width;
+        this.height = height;
+        this.contrast = contrast;
+        this.processNoisePerUs = processNoise * 1e-6;
+        this.eventVariance = (eventNoise * contrast) * (eventNoise * contrast);
+        this.frameNoise = frameNoise;
+        this.description = description;
+        int n = width * height;
+        this.estimate = new double[n];
+        this.variance = new double[n];
+        this.updatedUs = new long[n];
+        java.util.Arrays.fill(variance, UNKNOWN_VARIANCE);
+        java.util.Arrays.fill(updatedUs, Long.MIN_VALUE);
+    }
+
+    @Override
+    public String name() {
+        return "kalman-fusion";
+    }
+
+    @Override
+    public void process(EventBatch batch) {
+        int n = batch.size;
+        double[] x = estimate;
+        double[] p = variance;
+        long[] last = updatedUs;
+        int[] xs = batch.x;
+        int[] ys = batch.y;
+        int[] ts = batch.t;
+        byte[] ps = batch.p;
+        int w = width;
+        double c = contrast;
+        double q = processNoisePerUs;
+        double re = eventVariance;
+        long base = batch.timeBaseUs;
+        for (int i = 0; i < n; i++) {
+            int idx = ys[i] * w + xs[i];
+            long t = base + ts[i];
+            long before = last[idx];
+            long dt = before == Long.MIN_VALUE ? 0 : t - before;
+            if (dt < 0) {
+                lateEvents++;
+                dt = 0;
+                t = before;
+            }
+            p[idx] += q * dt + re;
+            x[idx] += ps[i] * c;
+            last[idx] = t;
+        }
+        counters.record(n, n);
+    }
+
+    @Override
+    public void applyFrame(long timeUs, ByteBuffer pixels, int bitDepth) {
+        int n = width * height;
+        int bytesPer = bitDepth == 8 ? 1 : 2;
+        if (bitDepth < 8 || bitDepth > 16) {
+            throw new IllegalArgumentException("bit depth " + bitDepth + " outside 8..16");
+        }
+        if (pixels.remaining() != n * bytesPer) {
+            throw new IllegalArgumentException("frame of " + pixels.remaining() + " bytes, expected " + n * bytesPer);
+        }
+        double[] zs = frameNoise.logs(bitDepth);
+        double[] rs = frameNoise.variances(bitDepth);
+        int max = (1 << bitDepth) - 1;
+        ByteBuffer in = pixels.duplicate().order(ByteOrder.LITTLE_ENDIAN);
+        int at = in.position();
+        double[] x = estimate;
+        double[] p = variance;
+        long[] last = updatedUs;
+        double q = processNoisePerUs;
+        for (int i = 0; i < n; i++) {
+            int v = bytesPer == 1 ? in.get(at + i) & 0xFF : Math.min(max, in.getShort(at + 2 * i) & 0xFFFF);
+            long before = last[i];
+            if (before != Long.MIN_VALUE && timeUs > before) {
+                p[i] += q * (timeUs - before);
+            }
+            double prior = p[i];
+            double gain = prior / (prior + rs[v]);
+            x[i] += gain * (zs[v] - x[i]);
+            p[i] = (1 - gain) * prior;
+            if (before == Long.MIN_VALUE || timeUs > before) {
+                last[i] = timeUs;
+            }
+        }
+        framesApplied++;
+    }
+
+    @Override
+    public void readLog(long timeUs, float[] out) {
+        double[] x = estimate;
+        for (int i = 0; i < x.length; i++) {
+            out[i] = (float) x[i];
+        }
+    }
+
+    /** Variance (log units²) of pixel {@code i}'s estimate as of its last update. */
+    public double variance(int i) {
+        return variance[i];
+    }
+
+    /** Estimate (log intensity) of pixel {@code i}. */
+    public double estimate(int i) {
+        return estimate[i];
+    }
+
+    /** Frames applied so far. */
+    public long framesApplied() {
+        return framesApplied;
+    }
+
+    /** Events older than their pixel's last update (applied as if at that time). */
+    public long lateEvents() {
+        return lateEvents;
+    }
+
+    @Override
+    public int width() {
+        return width;
+    }
+
+    @Override
+    public int height() {
+        return height;
+    }
+
+    @Override
+    public double contrast() {
+        return contrast;
+    }
+
+    @Override
+    public StageCounters counters() {
+        return counters;
+    }
+
+    @Override
+    public String describe() {
+        return description;
+    }
+}

@@ -1,0 +1,183 @@
+package dev.afterglow.filters.recon;
+
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+import static org.junit.jupiter.api.Assertions.fail;
+
+import dev.afterglow.filters.EventBatch;
+import dev.afterglow.filters.RandomEventStream;
+import dev.afterglow.filters.chain.Chain;
+import java.nio.ByteBuffer;
+import java.util.SplittableRandom;
+import org.junit.jupiter.api.Test;
+
+class KalmanFusionTest {
+    private static final double C = 0.2;
+
+    private static KalmanFusion filter(int w, int h, double q, double eventNoise, double shot, double read) {
+        return new KalmanFusion(w, h, C, q, eventNoise, new FrameNoiseModel(shot, read, 0.98), "kalman-fusion");
+    }
+
+    private static ByteBuffer frame(int n, int value) {
+        byte[] b = new byte[n];
+        java.util.Arrays.fill(b, (byte) value);
+        return ByteBuffer.wrap(b);
+    }
+
+    @Test
+    void shouldConvergeToTheSteadyStateGainOfTheScalarModel() {
+        // Scalar random walk x' = x + w (Var w = qT per frame period T), measured by z = x + v (Var v = R):
+        // the predicted variance converges to the positive root of P^2 - qT*P - qT*R = 0 and the gain to
+        // K = P/(P + R) (discrete algebraic Riccati equation, any estimation textbook, e.g. Simon,
+        // "Optimal State Estimation", 2006, ch. 7).
+        double q = 0.3;
+        long periodUs = 50_000;
+        int value = 60;
+        FrameNoiseModel model = new FrameNoiseModel(0.5, 2, 0.98);
+        double r = model.variance(value, 8);
+        KalmanFusion f = filter(1, 1, q, 0.3, 0.5, 2);
+        for (int k = 0; k < 400; k++) {
+            f.applyFrame(k * periodUs, frame(1, value), 8);
+        }
+        double qt = q * periodUs * 1e-6;
+        double predicted = (qt + Math.sqrt(qt * qt + 4 * qt * r)) / 2;
+        double gain = predicted / (predicted + r);
+        assertEquals((1 - gain) * predicted, f.variance(0), 1e-12 * predicted, "updated variance (1 - K) P");
+        assertTrue(gain > 0.05 && gain < 0.95, "a case where frames and drift both matter: K = " + gain);
+    }
+
+    @Test
+    void shouldHoldTheFrameExactlyInThePureFrameLimit() {
+        // Noiseless frames (only quantisation) after no prior knowledge: the estimate is the frame's log.
+        int w = 16;
+        int h = 8;
+        KalmanFusion f = filter(w, h, 1, 0.3, 0, 0);
+        byte[] pixels = new byte[w * h];
+        for (int i = 0; i < pixels.length; i++) {
+            pixels[i] = (byte) (i * 2 % 250);
+        }
+        f.applyFrame(1_000, ByteBuffer.wrap(pixels), 8);
+        float[] out = new float[w * h];
+        f.readLog(1_000, out);
+        for (int i = 0; i < out.length; i++) {
+            double z = Math.log(((pixels[i] & 0xFF) + 0.5) / 256);
+            assertEquals(z, out[i], 1e-5, "pixel " + i);
+        }
+    }
+
+    @Test
+    void shouldBeDirectIntegrationWithoutFrames() {
+        int w = 32;
+        int h = 24;
+        RandomEventStream s = RandomEventStream.builder(w, h, 11).build();
+        KalmanFusion f = filter(w, h, 0.05, 0.3, 0.5, 2);
+        DirectIntegration direct = new DirectIntegration(w, h, C);
+        EventBatch a = s.newBatch();
+        EventBatch b = s.newBatch();
+        float[] fo = new float[w * h];
+        float[] dox = new float[w * h];
+        for (int k = 0; k < s.batches; k++) {
+            s.fill(k, a);
+            s.fill(k, b);
+            f.process(a);
+            direct.process(b);
+        }
+        f.readLog(s.batchBase(s.batches - 1) + 1, fo);
+        direct.readLog(s.batchBase(s.batches - 1) + 1, dox);
+        for (int i = 0; i < fo.length; i++) {
+            assertEquals(dox[i], fo[i], 1e-4, "pixel " + i);
+        }
+    }
+
+    @Test
+    void shouldWeighASaturatedPixelAsNoMeasurementAndADarkOneLessThanABrightOne() {
+        KalmanFusion f = filter(3, 1, 0.05, 0.3, 0.5, 2);
+        EventBatch events = new EventBatch(3);
+        events.reset(0);
+        for (int x = 0; x < 3; x++) {
+            events.add(x, 0, 10, 1); // every pixel: +C from its first event, before any frame
+        }
+        f.process(events);
+        byte[] px = {(byte) 255, (byte) 2, (byte) 128}; // saturated, dark, well exposed
+        f.applyFrame(20, ByteBuffer.wrap(px), 8);
+        assertEquals(C, f.estimate(0), 1e-4, "a saturated frame pixel leaves the event estimate alone");
+        double zDark = Math.log(2.5 / 256);
+        double zMid = Math.log(128.5 / 256);
+        double pulledDark = (f.estimate(1) - C) / (zDark - C);
+        double pulledMid = (f.estimate(2) - C) / (zMid - C);
+        assertTrue(pulledMid > pulledDark, "the bright pixel's frame weighs more: " + pulledMid + " vs " + pulledDark);
+        assertTrue(pulledMid > 0.99, "an unknown pixel takes a good frame almost whole: " + pulledMid);
+    }
+
+    @Test
+    void shouldMatchANaiveDoublePrecisionReferenceOnSeededStreams() {
+        int w = 24;
+        int h = 16;
+        double q = 0.2;
+        double eventNoise = 0.4;
+        FrameNoiseModel model = new FrameNoiseModel(0.7, 3, 0.95);
+        KalmanFusion fast = new KalmanFusion(w, h, C, q, eventNoise, model, "kalman-fusion");
+        RandomEventStream s = RandomEventStream.builder(w, h, 5).build();
+        int n = w * h;
+        double[] x = new double[n];
+        double[] p = new double[n];
+        long[] last = new long[n];
+        java.util.Arrays.fill(p, KalmanFusion.UNKNOWN_VARIANCE);
+        java.util.Arrays.fill(last, Long.MIN_VALUE);
+        SplittableRandom rnd = new SplittableRandom(5);
+        EventBatch batch = s.newBatch();
+        float[] out = new float[n];
+        double re = Math.pow(eventNoise * C, 2);
+        for (int k = 0; k < s.batches; k++) {
+            s.fill(k, batch);
+            fast.process(batch);
+            for (int i = s.batchFrom(k); i < s.batchTo(k); i++) {
+                int idx = s.y[i] * w + s.x[i];
+                long t = Math.max(s.t[i], last[idx]);
+                p[idx] += (last[idx] == Long.MIN_VALUE ? 0 : q * (t - last[idx]) * 1e-6) + re;
+                x[idx] += s.p[i] * C;
+                last[idx] = t;
+            }
+            if (k % 5 == 4) { // a frame at the end of this batch
+                long tf = s.batchTo(k) > 0 ? s.t[s.batchTo(k) - 1] + 1 : 0;
+                byte[] px = new byte[n];
+                for (int i = 0; i < n; i++) {
+                    px[i] = (byte) rnd.nextInt(256);
+                }
+                fast.applyFrame(tf, ByteBuffer.wrap(px), 8);
+                for (int i = 0; i < n; i++) {
+                    int v = px[i] & 0xFF;
+                    double z = Math.log((v + 0.5) / 256);
+                    double r = v >= Math.ceil(0.95 * 255) ? FrameNoiseModel.SATURATED_VARIANCE
+                            : (0.7 * v + 9 + 1.0 / 12) / ((v + 0.5) * (v + 0.5));
+                    if (last[i] != Long.MIN_VALUE && tf > last[i]) {
+                        p[i] += q * (tf - last[i]) * 1e-6;
+                    }
+                    double gain = p[i] / (p[i] + r);
+                    x[i] += gain * (z - x[i]);
+                    p[i] *= 1 - gain;
+                    if (last[i] == Long.MIN_VALUE || tf > last[i]) {
+                        last[i] = tf;
+                    }
+                }
+            }
+            fast.readLog(0, out);
+            for (int i = 0; i < n; i++) {
+                if (!(Math.abs(out[i] - x[i]) <= 1e-9 + Math.ulp((float) x[i]))) {
+                    fail("batch " + k + " pixel " + i + ": got " + out[i] + ", naive " + x[i]);
+                }
+                if (Math.abs(fast.variance(i) - p[i]) > 1e-9 * Math.max(1, p[i])) {
+                    fail("batch " + k + " pixel " + i + ": variance " + fast.variance(i) + ", naive " + p[i]);
+                }
+            }
+        }
+        assertTrue(fast.framesApplied() > 3);
+    }
+
+    @Test
+    void shouldBuildFromAChainDescription() {
+        Chain chain = Chain.build("refractory(period=100us) | kalman-fusion(process-noise=0.1, read-noise=3)", 8, 8);
+        assertTrue(chain.reconstruction() instanceof KalmanFusion);
+        assertTrue(chain.reconstruction().describe().startsWith("kalman-fusion("), chain.reconstruction().describe());
+    }
+}
