@@ -38,7 +38,7 @@ public class ReadoutBenchmark {
     public String sensor;
 
     /** Reconstruction read out. */
-    @Param({"high-pass", "complementary"})
+    @Param({"high-pass", "complementary", "kalman-fusion"})
     public String reconstruction;
 
     private FrameReader reader;

@@ -34,7 +34,7 @@ import org.openjdk.jmh.annotations.State;
 public class StageBenchmark {
     /** The stage to measure. */
     @Param({"refractory", "hot-pixel", "background-activity", "correlation", "direct-integration",
-            "high-pass", "complementary"})
+            "high-pass", "complementary", "kalman-fusion"})
     public String stage;
 
     private EventStage built;

@@ -29,6 +29,8 @@ final class Stages {
                 return "high-pass(cutoff=5rad/s, contrast=0.2)";
             case "complementary":
                 return "complementary(cutoff=5rad/s, low-cutoff=0.5rad/s, contrast=0.2, saturated=0.95, dark=0.05)";
+            case "kalman-fusion":
+                return "kalman-fusion(contrast=0.2, process-noise=0.05, event-noise=0.3, shot-gain=0.5, read-noise=2, saturated=0.98)";
             default:
                 throw new IllegalArgumentException("unknown stage " + stage);
         }
@@ -43,7 +45,7 @@ final class Stages {
     static EventStage build(String stage, int width, int height, long frameUs) {
         String description = description(stage);
         boolean reconstructs = stage.equals("direct-integration") || stage.equals("high-pass")
-                || stage.equals("complementary");
+                || stage.equals("complementary") || stage.equals("kalman-fusion");
         Chain chain = Chain.build(reconstructs ? description : description + " | direct-integration", width, height);
         EventStage built = chain.stages().get(0);
         if (built instanceof dev.afterglow.filters.recon.FrameFusion fusion) {
