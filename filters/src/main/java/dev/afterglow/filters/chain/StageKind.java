@@ -9,6 +9,7 @@ import dev.afterglow.filters.recon.FrameNoiseModel;
 import dev.afterglow.filters.recon.KalmanFusion;
 import dev.afterglow.filters.recon.DirectIntegration;
 import dev.afterglow.filters.recon.HighPassFilter;
+import dev.afterglow.filters.recon.HoldFrame;
 import java.util.List;
 
 /**
@@ -67,6 +68,13 @@ public enum StageKind {
         @Override
         EventStage build(StageSpec s, int w, int h) {
             return new HighPassFilter(w, h, s.get("contrast"), s.get("cutoff"));
+        }
+    },
+    /** {@link HoldFrame}: the sensor's latest own frame, events ignored (the baseline fusion must beat). */
+    HOLD_FRAME("hold-frame", true, List.of()) {
+        @Override
+        EventStage build(StageSpec s, int w, int h) {
+            return new HoldFrame(w, h);
         }
     },
     /** {@link KalmanFusion}: per-pixel uncertainty-weighted fusion of events and the sensor's frames. */
