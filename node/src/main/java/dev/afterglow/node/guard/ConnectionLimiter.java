@@ -45,7 +45,7 @@ public final class ConnectionLimiter extends ChannelInboundHandlerAdapter {
             n.decrementAndGet();
             ctx.channel().attr(REFUSED).set(Boolean.TRUE);
             nodeCounters.increment(NodeCounter.CONNECTIONS_REFUSED);
-            OnceLog.warn("limit:" + listener + ":" + address, listener + ": connection from " + address
+            OnceLog.warn("limit:" + listener, listener + ": connection from " + address
                     + " refused: more than " + maxPerAddress + " from one address", null);
             refuse.accept(ctx.channel());
             return;

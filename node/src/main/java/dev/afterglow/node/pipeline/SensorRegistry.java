@@ -94,7 +94,7 @@ public final class SensorRegistry {
         boolean authenticated = settings.hasToken() && tokenMatches(settings.token, hello.getToken());
         if (settings.hasToken() && !authenticated) {
             nodeCounters.increment(NodeCounter.AUTH_REFUSED);
-            OnceLog.warn("auth:" + id, "sensor " + id + ": hello with a wrong or missing token refused from "
+            OnceLog.warn("auth-sensor", "sensor " + id + ": hello with a wrong or missing token refused from "
                     + channel.remoteAddress(), null);
             return Attach.error("unauthorized", "sensor " + id + " needs its token");
         }

@@ -60,7 +60,7 @@ public final class SubscriberHandler extends SimpleChannelInboundHandler<ByteBuf
         String refused = access.check(s.getToken(), s.getSensorId());
         if (refused != null) {
             nodeCounters.increment(NodeCounter.AUTH_REFUSED);
-            OnceLog.warn("auth-subscriber:" + ctx.channel().remoteAddress(), "subscriber from " + ctx.channel().remoteAddress()
+            OnceLog.warn("auth-subscriber", "subscriber from " + ctx.channel().remoteAddress()
                     + " refused: " + refused, null);
             reject(ctx, "unauthorized", refused);
             return;
