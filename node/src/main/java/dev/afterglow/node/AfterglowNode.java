@@ -7,7 +7,7 @@ import dev.afterglow.node.guard.ConnectionLimiter;
 import dev.afterglow.node.http.MessageMark;
 import dev.afterglow.node.http.OriginCheck;
 import dev.afterglow.node.ingest.ErrorReplies;
-import dev.afterglow.node.pipeline.ChainWarmup;
+import dev.afterglow.node.pipeline.PipelineWarmup;
 import dev.afterglow.node.pipeline.PipelineWatchdog;
 import dev.afterglow.node.publish.SubscriberAccess;
 import dev.afterglow.node.stats.OnceLog;
@@ -121,7 +121,7 @@ public final class AfterglowNode implements AutoCloseable {
         int maxMessage = config.limits.maxMessageBytes;
         LimitsConfig limits = config.limits;
         if (config.warmUp) {
-            ChainWarmup.run(config); // compile the hot paths before the first sensor's packets count against its budget
+            PipelineWarmup.run(config); // compile the hot paths before the first sensor's packets count against its budget
         }
         if (config.listen.ingestTcpPort >= 0) {
             ConnectionLimiter limiter = new ConnectionLimiter("ingest", limits.maxConnectionsPerAddress, nodeCounters,

@@ -48,7 +48,8 @@ class KalmanFusionTest {
 
     @Test
     void shouldHoldTheFrameExactlyInThePureFrameLimit() {
-        // Noiseless frames (only quantisation) after no prior knowledge: the estimate is the frame's log.
+        // Pure-frame limit: as R -> 0 against an unknown prior, K -> 1 and the update returns the
+        // measurement (Kalman update equations, common practice). Here R is quantisation only.
         int w = 16;
         int h = 8;
         KalmanFusion f = filter(w, h, 1, 0.3, 0, 0);
@@ -67,6 +68,8 @@ class KalmanFusionTest {
 
     @Test
     void shouldBeDirectIntegrationWithoutFrames() {
+        // Pure-event limit: with no measurement the state only integrates its inputs, x = sum of p*C
+        // (the event generation model's direct integration, common practice).
         int w = 32;
         int h = 24;
         RandomEventStream s = RandomEventStream.builder(w, h, 11).build();

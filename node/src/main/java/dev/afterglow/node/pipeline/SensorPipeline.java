@@ -654,8 +654,7 @@ public final class SensorPipeline {
         long end = f.getExposureEndUs();
         boolean timesInRange = start >= 0 && end >= start && end <= MAX_SENSOR_TIME_US;
         long mid = start + (end - start) / 2;
-        if (!timesInRange || (clockMapper.ready()
-                && mid - (clock.monotonicNanos() / 1000 - clockMapper.offsetUs()) > timeline.maxAheadUs())
+        if (!timesInRange || timeline.leadUs(clock.monotonicNanos() / 1000, mid) > timeline.maxAheadUs()
                 || (lastFrameUs != Long.MIN_VALUE && mid < lastFrameUs - RESTART_THRESHOLD_US)) {
             counters.increment(NodeCounter.SENSOR_FRAMES_REJECTED);
             return;

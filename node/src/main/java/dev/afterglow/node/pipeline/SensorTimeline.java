@@ -49,6 +49,14 @@ final class SensorTimeline {
         this.maxAheadUs = maxAheadUs;
     }
 
+    /**
+     * How far sensor time {@code sensorUs}, seen at host time {@code hostUs}, is ahead of the sensor
+     * time the clock mapping expects then (0 before the mapping has a packet).
+     */
+    long leadUs(long hostUs, long sensorUs) {
+        return mapper.ready() ? sensorUs - (hostUs - mapper.offsetUs()) : 0;
+    }
+
     /** Largest lead of a packet over the timeline, microseconds. */
     long maxAheadUs() {
         return maxAheadUs;
@@ -65,7 +73,7 @@ final class SensorTimeline {
      * {@code newestAcceptedArrivalUs} the host arrival of the packet that brought it.
      */
     Verdict check(long arrivalUs, long newestUs, long newestAcceptedUs, long newestAcceptedArrivalUs) {
-        long mappingLead = mapper.ready() ? mapper.offsetUs() - (arrivalUs - newestUs) : 0;
+        long mappingLead = leadUs(arrivalUs, newestUs);
         boolean followsOwnStream = newestAcceptedUs != Long.MIN_VALUE
                 && newestUs - newestAcceptedUs <= (arrivalUs - newestAcceptedArrivalUs) + OWN_LEAD_US;
         boolean future = mappingLead > maxAheadUs && (mappingLead > RESTART_THRESHOLD_US || !followsOwnStream);

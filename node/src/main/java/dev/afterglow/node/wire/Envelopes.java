@@ -33,19 +33,7 @@ public final class Envelopes {
     public static ByteBuf delimitedDirect(Envelope envelope, ByteBufAllocator alloc) {
         int size = envelope.getSerializedSize();
         int total = CodedOutputStream.computeUInt32SizeNoTag(size) + size;
-        ByteBuf buf = alloc.directBuffer(total, total);
-        try {
-            CodedOutputStream out = CodedOutputStream.newInstance(buf.nioBuffer(buf.writerIndex(), total));
-            out.writeUInt32NoTag(size);
-            envelope.writeTo(out);
-            out.flush();
-            out.checkNoSpaceLeft();
-            buf.writerIndex(buf.writerIndex() + total);
-            return buf;
-        } catch (IOException | RuntimeException e) {
-            buf.release();
-            throw new IllegalStateException("encoding into an exactly sized buffer failed", e);
-        }
+        return writeDelimited(envelope, size, total, alloc.directBuffer(total, total));
     }
 
     /** Parses one envelope from {@code bytes} (a sealed datagram's inner envelope); bytes fields alias it. */
@@ -70,11 +58,18 @@ public final class Envelopes {
     public static ByteBuf delimited(Envelope envelope, ByteBufAllocator alloc) {
         int size = envelope.getSerializedSize();
         int total = CodedOutputStream.computeUInt32SizeNoTag(size) + size;
-        ByteBuf buf = alloc.heapBuffer(total, total);
+        return writeDelimited(envelope, size, total, alloc.heapBuffer(total, total));
+    }
+
+    /** Writes the length prefix and the envelope ({@code size} bytes, {@code total} with the prefix) into {@code buf}. */
+    private static ByteBuf writeDelimited(Envelope envelope, int size, int total, ByteBuf buf) {
         try {
-            CodedOutputStream out = CodedOutputStream.newInstance(buf.array(), buf.arrayOffset() + buf.writerIndex(), total);
+            CodedOutputStream out = buf.hasArray()
+                    ? CodedOutputStream.newInstance(buf.array(), buf.arrayOffset() + buf.writerIndex(), total)
+                    : CodedOutputStream.newInstance(buf.nioBuffer(buf.writerIndex(), total));
             out.writeUInt32NoTag(size);
             envelope.writeTo(out);
+            out.flush();
             out.checkNoSpaceLeft();
             buf.writerIndex(buf.writerIndex() + total);
             return buf;

@@ -37,7 +37,7 @@ import java.util.concurrent.atomic.AtomicLong;
  * in it is shed, and its frames go to a subscriber that discards them. Takes about
  * {@value #BUDGET_MS} ms on the calling thread; nothing of it outlives the call.
  */
-public final class ChainWarmup {
+public final class PipelineWarmup {
     static final long BUDGET_MS = 1_200;
     private static final int WIDTH = 320;
     private static final int HEIGHT = 240;
@@ -45,7 +45,7 @@ public final class ChainWarmup {
     private static final int PACKET_US = 1_000;
     private static final int EVENTS_PER_PACKET = 2_000;
 
-    private ChainWarmup() {
+    private PipelineWarmup() {
     }
 
     /** Warms every distinct chain and tone map of {@code config}. */
