@@ -3,6 +3,7 @@ package dev.afterglow.filters.quality;
 import dev.afterglow.filters.EventBatch;
 import dev.afterglow.filters.chain.Chain;
 import dev.afterglow.filters.chain.ChainSpec;
+import dev.afterglow.filters.chain.DefaultChains;
 import dev.afterglow.filters.readout.ToneMap;
 import dev.afterglow.filters.readout.ToneMapper;
 import dev.afterglow.filters.recon.FrameFusion;
@@ -37,20 +38,41 @@ public final class QualityRun {
     public static final long SLICE_US = 1_000;
 
     /**
-     * One chain to assess.
+     * One chain to assess, or the flat baseline.
      *
      * @param label short name for tables and pictures
-     * @param chain the chain description
+     * @param chain the chain description; null only for {@link #flat()}
      */
     public record Method(String label, ChainSpec chain) {
+        /** Label of the flat baseline. */
+        public static final String FLAT = "flat";
+
         /** Validates. */
         public Method {
             if (label == null || label.isBlank()) {
                 throw new IllegalArgumentException("method label is empty");
             }
-            if (chain == null) {
+            if (chain == null && !FLAT.equals(label)) {
                 throw new IllegalArgumentException("method " + label + ": no chain");
             }
+        }
+
+        /**
+         * The flat baseline: a constant image, which the affine fit turns into the truth's mean. A
+         * method that does not beat it shows nothing.
+         */
+        public static Method flat() {
+            return new Method(FLAT, null);
+        }
+
+        /** Whether this is the flat baseline. */
+        public boolean isFlat() {
+            return chain == null;
+        }
+
+        /** The chain in description syntax, or a note for the flat baseline. */
+        public String describe() {
+            return chain == null ? "(a constant image)" : chain.toString();
         }
     }
 
@@ -117,6 +139,29 @@ public final class QualityRun {
         return list;
     }
 
+    /** Cut-off of the plain complementary filter baseline: one fixed 2π rad/s (1 Hz) everywhere. */
+    public static final String PLAIN_COMPLEMENTARY_CUTOFF = "6.283185rad/s";
+
+    /**
+     * The benchmark's methods: what a user already has (the flat image; with frames, holding the
+     * sensor's latest frame and the plain complementary filter with one fixed cut-off and no
+     * denoise), the node's default chain for such a sensor ({@link DefaultChains}) and, for
+     * comparison, the high-pass filter after the standard denoise stages.
+     */
+    public static List<Method> benchmarkMethods(double contrast, boolean frames) {
+        String c = String.format(Locale.ROOT, "contrast=%s", contrast);
+        List<Method> list = new ArrayList<>();
+        list.add(Method.flat());
+        if (frames) {
+            list.add(new Method("hold-frame", ChainSpec.parse("hold-frame")));
+            list.add(new Method("plain-comp", ChainSpec.parse("complementary(cutoff=" + PLAIN_COMPLEMENTARY_CUTOFF
+                    + ", low-cutoff=" + PLAIN_COMPLEMENTARY_CUTOFF + ", " + c + ")")));
+        }
+        list.add(new Method("high-pass+dn", ChainSpec.parse(STANDARD_DENOISE + " | high-pass(cutoff=5rad/s, " + c + ")")));
+        list.add(new Method("default", DefaultChains.forSensor(frames)));
+        return list;
+    }
+
     /**
      * The standard denoise stages: a refractory filter no longer than the sensor's own refractory
      * period (so it only thins noise bursts), and the background-activity filter with dT = 5 ms,
@@ -170,9 +215,9 @@ public final class QualityRun {
         MethodResult[] results = new MethodResult[m];
         for (int k = 0; k < m; k++) {
             Method method = s.methods().get(k);
-            chains[k] = Chain.build(method.chain(), w, h);
-            fusion[k] = chains[k].reconstruction() instanceof FrameFusion c ? c : null;
-            filters[k] = chains[k].stages().size() > 1;
+            chains[k] = method.isFlat() ? null : Chain.build(method.chain(), w, h);
+            fusion[k] = chains[k] != null && chains[k].reconstruction() instanceof FrameFusion c ? c : null;
+            filters[k] = chains[k] != null && chains[k].stages().size() > 1;
             results[k] = new MethodResult(method.label(), method.chain());
         }
         int capacity = 1 << 20;
@@ -201,7 +246,9 @@ public final class QualityRun {
             for (int k = 0; k < m; k++) {
                 work.copyFrom(batch);
                 long t0 = System.nanoTime();
-                chains[k].process(work);
+                if (chains[k] != null) {
+                    chains[k].process(work);
+                }
                 results[k].processNs += System.nanoTime() - t0;
                 results[k].countSurvivors(batch, labels, work, filters[k]);
             }
@@ -209,7 +256,7 @@ public final class QualityRun {
                 frames++;
                 for (int k = 0; k < m; k++) {
                     if (fusion[k] != null) {
-                        fusion[k].applyFrame(f.midExposureUs(), f.buffer(), 8);
+                        fusion[k].applyFrame(f.exposureStartUs(), f.exposureEndUs(), f.buffer(), 8);
                     }
                 }
                 if (latestFrame == null) {
@@ -228,7 +275,11 @@ public final class QualityRun {
                 float[] truthDisplay = null;
                 for (int k = 0; k < m; k++) {
                     long r0 = System.nanoTime();
-                    chains[k].reconstruction().readLog(t, recon);
+                    if (chains[k] != null) {
+                        chains[k].reconstruction().readLog(t, recon);
+                    } else {
+                        java.util.Arrays.fill(recon, 0f);
+                    }
                     toneMapper.apply(recon, n, gray);
                     results[k].recordReadout(System.nanoTime() - r0);
                     long q0 = System.nanoTime();
@@ -302,6 +353,28 @@ public final class QualityRun {
                     j++;
                 }
             }
+        }
+
+        /**
+         * Pools {@code other}'s totals into this one (the same method run on another seed): means
+         * then cover the evaluations of both, shares the events of both.
+         */
+        public void pool(MethodResult other) {
+            processNs += other.processNs;
+            eventsIn += other.eventsIn;
+            eventsApplied += other.eventsApplied;
+            for (int i = 0; i < labelIn.length; i++) {
+                labelIn[i] += other.labelIn[i];
+                labelKept[i] += other.labelKept[i];
+            }
+            readouts += other.readouts;
+            readoutNs += other.readoutNs;
+            readoutMaxNs = Math.max(readoutMaxNs, other.readoutMaxNs);
+            averaged += other.averaged;
+            psnrSum += other.psnrSum;
+            ssimSum += other.ssimSum;
+            maeSum += other.maeSum;
+            lastSsim = other.lastSsim;
         }
 
         void recordReadout(long ns) {

@@ -15,4 +15,15 @@ public interface FrameFusion extends Reconstruction {
      * @throws IllegalArgumentException if the size or bit depth is wrong
      */
     void applyFrame(long timeUs, ByteBuffer pixels, int bitDepth);
+
+    /**
+     * Applies a sensor frame exposed from {@code exposureStartUs} to {@code exposureEndUs}. A frame
+     * is an average over its exposure; a fusion that models that overrides this, the others take
+     * the frame at mid-exposure.
+     *
+     * @throws IllegalArgumentException if the size or bit depth is wrong
+     */
+    default void applyFrame(long exposureStartUs, long exposureEndUs, ByteBuffer pixels, int bitDepth) {
+        applyFrame(exposureStartUs + (exposureEndUs - exposureStartUs) / 2, pixels, bitDepth);
+    }
 }

@@ -36,6 +36,8 @@ import java.nio.ByteOrder;
 public final class KalmanFusion implements FrameFusion {
     /** Variance of a pixel nothing is known about yet (log units²). */
     static final double UNKNOWN_VARIANCE = 1e6;
+    /** Longest frame interval whose cadence is tracked. */
+    static final long MAX_FRAME_PERIOD_US = 2_000_000;
 
     private final int width;
     private final int height;
@@ -46,7 +48,25 @@ public final class KalmanFusion implements FrameFusion {
     private final double[] estimate;
     private final double[] variance;
     private final long[] updatedUs;
+    /** The estimate when the tracked exposure opened. */
+    private final float[] atExposureStart;
+    /** Sum over the tracked exposure's events of p·C·(end - t)/(end - start). */
+    private final float[] exposureShare;
     private final StageCounters counters = new StageCounters();
+    // The exposure of the next expected frame, predicted from the last two frames' cadence.
+    private static final int UNTRACKED = 0;
+    private static final int ARMED = 1;
+    private static final int OPEN = 2;
+    private static final int CLOSED = 3;
+    private int exposurePhase = UNTRACKED;
+    private long exposureStartUs;
+    private long exposureEndUs;
+    private long framePeriodUs;
+    private long lastFrameStartUs = Long.MIN_VALUE;
+    /** Event time at which the exposure phase changes next (Long.MAX_VALUE: never). */
+    private long nextMarkUs = Long.MAX_VALUE;
+    private long latestEventUs = Long.MIN_VALUE;
+    private long framesAligned;
     private final String description;
     private long framesApplied;
     private long lateEvents;
@@ -78,6 +98,8 @@ public final class KalmanFusion implements FrameFusion {
         this.estimate = new double[n];
         this.variance = new double[n];
         this.updatedUs = new long[n];
+        this.atExposureStart = new float[n];
+        this.exposureShare = new float[n];
         java.util.Arrays.fill(variance, UNKNOWN_VARIANCE);
         java.util.Arrays.fill(updatedUs, Long.MIN_VALUE);
     }
@@ -102,9 +124,22 @@ public final class KalmanFusion implements FrameFusion {
         double q = processNoisePerUs;
         double re = eventVariance;
         long base = batch.timeBaseUs;
+        float[] share = exposureShare;
+        boolean open = exposurePhase == OPEN;
+        double sharePerUs = open ? c / (exposureEndUs - exposureStartUs) : 0;
+        long end = exposureEndUs;
         for (int i = 0; i < n; i++) {
             int idx = ys[i] * w + xs[i];
             long t = base + ts[i];
+            if (t >= nextMarkUs) {
+                passMark(t);
+                open = exposurePhase == OPEN;
+                sharePerUs = open ? c / (exposureEndUs - exposureStartUs) : 0;
+                end = exposureEndUs;
+            }
+            if (open) {
+                share[idx] += (float) (ps[i] * sharePerUs * (end - t));
+            }
             long before = last[idx];
             long dt = before == Long.MIN_VALUE ? 0 : t - before;
             if (dt < 0) {
@@ -116,11 +151,82 @@ public final class KalmanFusion implements FrameFusion {
             x[idx] += ps[i] * c;
             last[idx] = t;
         }
+        if (n > 0) {
+            latestEventUs = Math.max(latestEventUs, base + ts[n - 1]);
+        }
         counters.record(n, n);
+    }
+
+    /** The event stream reached {@link #nextMarkUs}: open or close the tracked exposure. */
+    private void passMark(long t) {
+        if (exposurePhase == ARMED || exposurePhase == CLOSED) {
+            if (exposurePhase == CLOSED) {
+                // The expected frame never came: track the next one of the cadence.
+                long periods = Math.max(1, (t - exposureStartUs) / framePeriodUs);
+                exposureStartUs += periods * framePeriodUs;
+                exposureEndUs += periods * framePeriodUs;
+            }
+            openExposure();
+            if (t >= exposureEndUs) {
+                exposurePhase = CLOSED;
+                nextMarkUs = exposureStartUs + framePeriodUs;
+            }
+        } else if (exposurePhase == OPEN) {
+            exposurePhase = CLOSED;
+            nextMarkUs = exposureStartUs + framePeriodUs;
+        }
+    }
+
+    private void openExposure() {
+        double[] x = estimate;
+        float[] at = atExposureStart;
+        for (int i = 0; i < x.length; i++) {
+            at[i] = (float) x[i];
+        }
+        java.util.Arrays.fill(exposureShare, 0f);
+        exposurePhase = OPEN;
+        nextMarkUs = exposureEndUs;
     }
 
     @Override
     public void applyFrame(long timeUs, ByteBuffer pixels, int bitDepth) {
+        update(timeUs, pixels, bitDepth, false);
+    }
+
+    /**
+     * Applies a frame as the average of the pixel's log intensity over its exposure. When the
+     * exposure is the one this filter predicted from the frames' cadence and tracked while its
+     * events came in, the innovation is taken against the estimate's own average over the exposure
+     * ({@code x(start) + Σ p·C·(end - t)/(end - start)} over the exposure's events), and the
+     * correction moves the whole trajectory since: events after the exposure stay applied. Otherwise
+     * (the first two frames, a changed cadence) the frame is taken as a measurement of the current
+     * estimate.
+     */
+    @Override
+    public void applyFrame(long exposureStartUs, long exposureEndUs, ByteBuffer pixels, int bitDepth) {
+        boolean aligned = (exposurePhase == OPEN || exposurePhase == CLOSED || exposurePhase == ARMED)
+                && exposureStartUs == this.exposureStartUs && exposureEndUs == this.exposureEndUs;
+        boolean tracked = aligned && exposurePhase != ARMED; // ARMED: no event since the start, x is still x(start)
+        update(exposureEndUs, pixels, bitDepth, tracked);
+        if (aligned) {
+            framesAligned++;
+        }
+        if (lastFrameStartUs != Long.MIN_VALUE && exposureStartUs > lastFrameStartUs
+                && exposureStartUs - lastFrameStartUs <= MAX_FRAME_PERIOD_US && exposureEndUs > exposureStartUs) {
+            framePeriodUs = exposureStartUs - lastFrameStartUs;
+            this.exposureStartUs = exposureStartUs + framePeriodUs;
+            this.exposureEndUs = exposureEndUs + framePeriodUs;
+            // Events already past the next start: that exposure cannot be tracked; wait for the one after.
+            exposurePhase = latestEventUs >= this.exposureStartUs ? CLOSED : ARMED;
+            nextMarkUs = exposurePhase == ARMED ? this.exposureStartUs : this.exposureStartUs + framePeriodUs;
+        } else {
+            exposurePhase = UNTRACKED;
+            nextMarkUs = Long.MAX_VALUE;
+        }
+        lastFrameStartUs = exposureStartUs;
+    }
+
+    private void update(long timeUs, ByteBuffer pixels, int bitDepth, boolean againstExposure) {
         int n = width * height;
         int bytesPer = bitDepth == 8 ? 1 : 2;
         if (bitDepth < 8 || bitDepth > 16) {
@@ -137,6 +243,8 @@ public final class KalmanFusion implements FrameFusion {
         double[] x = estimate;
         double[] p = variance;
         long[] last = updatedUs;
+        float[] start = atExposureStart;
+        float[] share = exposureShare;
         double q = processNoisePerUs;
         for (int i = 0; i < n; i++) {
             int v = bytesPer == 1 ? in.get(at + i) & 0xFF : Math.min(max, in.getShort(at + 2 * i) & 0xFFFF);
@@ -146,7 +254,8 @@ public final class KalmanFusion implements FrameFusion {
             }
             double prior = p[i];
             double gain = prior / (prior + rs[v]);
-            x[i] += gain * (zs[v] - x[i]);
+            double seen = againstExposure ? start[i] + share[i] : x[i];
+            x[i] += gain * (zs[v] - seen);
             p[i] = (1 - gain) * prior;
             if (before == Long.MIN_VALUE || timeUs > before) {
                 last[i] = timeUs;
@@ -176,6 +285,11 @@ public final class KalmanFusion implements FrameFusion {
     /** Frames applied so far. */
     public long framesApplied() {
         return framesApplied;
+    }
+
+    /** Frames whose exposure was the predicted one (the rest were taken against the current estimate). */
+    public long framesAligned() {
+        return framesAligned;
     }
 
     /** Events older than their pixel's last update (applied as if at that time). */

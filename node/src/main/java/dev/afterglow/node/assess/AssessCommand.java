@@ -2,6 +2,7 @@ package dev.afterglow.node.assess;
 
 import dev.afterglow.filters.chain.ChainSpec;
 import dev.afterglow.filters.chain.StageSpec;
+import dev.afterglow.filters.quality.BenchmarkSeeds;
 import dev.afterglow.filters.quality.FrameQuality;
 import dev.afterglow.filters.quality.QualityRun;
 import dev.afterglow.filters.quality.QualityRun.MethodResult;
@@ -81,8 +82,10 @@ public final class AssessCommand implements Callable<Integer> {
     @Option(names = "--exposure", description = "Exposure of each sensor frame in ms, 0.01 .. the frame interval. Default: ${DEFAULT-VALUE}")
     double exposureMs = 10;
 
-    @Option(names = "--seed", description = "Seed of the scene and the sensor. Default: ${DEFAULT-VALUE}")
-    long seed = 7;
+    @Option(names = "--seeds", paramLabel = "SET", description = "Seeds of the scene and the sensor: 'validation' (the "
+            + "seeds figures are reported on), 'tuning' (the seeds defaults are chosen on) or a comma-separated list; "
+            + "scores are pooled over the seeds. Default: ${DEFAULT-VALUE}")
+    String seeds = "validation";
 
     @Option(names = "--out", description = "Folder for the CSV and the PNG. Default: ${DEFAULT-VALUE}")
     Path out = Path.of("assess-out");
@@ -92,9 +95,10 @@ public final class AssessCommand implements Callable<Integer> {
         validate();
         SceneKind kind = SceneKind.byLabel(scene);
         List<QualityRun.Method> methods = methods();
+        long[] seedList = seedList();
         SensorConfig sensor = SensorConfig.builder(width, height).contrast(contrast).mismatch(mismatch)
                 .backgroundRateHz(noiseHz).hotPixels(hotPixels, 500).frames(frameRateHz, (int) Math.round(exposureMs * 1000))
-                .seed(seed).build();
+                .seed(seedList[0]).build();
         long durationUs = Math.round(seconds * 1e6);
         long intervalUs = Math.round(1e6 / evalRateHz);
         long[] snaps = new long[snapshots];
@@ -105,46 +109,65 @@ public final class AssessCommand implements Callable<Integer> {
         Path csv = out.resolve(kind.label() + "-metrics.csv");
         Path png = out.resolve(kind.label() + "-contact.png");
         PrintStream log = System.out;
-        log.printf(Locale.ROOT, "afterglow assess: scene %s %dx%d (%s), %.1f s of sensor time, seed %d%n",
-                kind.label(), width, height, kind.summary(), seconds, seed);
+        log.printf(Locale.ROOT, "afterglow assess: scene %s %dx%d (%s), %.1f s of sensor time, seeds %s (%s)%n",
+                kind.label(), width, height, kind.summary(), seconds, joined(seedList), seeds);
         log.printf(Locale.ROOT, "sensor: C=%s with %.0f%% mismatch, refractory %d us, background activity %s Hz/pixel, "
                         + "%d hot pixels at 500 Hz, jitter %s us, frames %s Hz with %s ms exposure (8-bit, full scale 1, read noise %s)%n",
                 fmt(contrast), mismatch * 100, sensor.refractoryUs(), fmt(noiseHz), hotPixels, fmt(sensor.jitterUs()),
                 fmt(frameRateHz), fmt(exposureMs), fmt(sensor.readNoiseDn()));
 
         ContactSheet sheet = new ContactSheet(width, height, methods.stream().map(QualityRun.Method::label).toList());
-        QualityRun.Report report;
+        QualityRun.Report report = null;
+        List<double[]> perSeedSsim = new ArrayList<>();
         try (BufferedWriter w = Files.newBufferedWriter(csv, StandardCharsets.UTF_8)) {
-            w.write("time_s,method,ssim,psnr_db,mae_log,fit_scale,fit_offset,chain\n");
-            QualityRun run = new QualityRun(new QualityRun.Settings(kind.create(width, height, seed), sensor, durationUs,
-                    intervalUs, Math.round(warmupS * 1e6), snaps, methods));
-            report = run.run(new QualityRun.Observer() {
-                @Override
-                public void evaluated(long timeUs, int method, FrameQuality q) {
-                    try {
-                        w.write(String.format(Locale.ROOT, "%.3f,%s,%.6f,%.4f,%.6f,%.6g,%.6g,\"%s\"%n", timeUs * 1e-6,
-                                methods.get(method).label(), q.ssim(), q.psnrDb(), q.maeLog(), q.fit().scale(),
-                                q.fit().offset(), methods.get(method).chain()));
-                    } catch (IOException e) {
-                        throw new java.io.UncheckedIOException(e);
+            w.write("seed,time_s,method,ssim,psnr_db,mae_log,fit_scale,fit_offset,chain\n");
+            for (int si = 0; si < seedList.length; si++) {
+                long seed = seedList[si];
+                boolean pictures = si == 0;
+                QualityRun run = new QualityRun(new QualityRun.Settings(kind.create(width, height, seed),
+                        sensor.toBuilder().seed(seed).build(), durationUs, intervalUs, Math.round(warmupS * 1e6),
+                        pictures ? snaps : new long[0], methods));
+                QualityRun.Report one = run.run(new QualityRun.Observer() {
+                    @Override
+                    public void evaluated(long timeUs, int method, FrameQuality q) {
+                        try {
+                            w.write(String.format(Locale.ROOT, "%d,%.3f,%s,%.6f,%.4f,%.6f,%.6g,%.6g,\"%s\"%n", seed,
+                                    timeUs * 1e-6, methods.get(method).label(), q.ssim(), q.psnrDb(), q.maeLog(),
+                                    q.fit().scale(), q.fit().offset(), methods.get(method).describe()));
+                        } catch (IOException e) {
+                            throw new java.io.UncheckedIOException(e);
+                        }
                     }
-                }
 
-                @Override
-                public void snapshot(long timeUs, float[] truth, byte[] frame, float[][] display, FrameQuality[] quality) {
-                    double[] ssim = new double[quality.length];
-                    for (int k = 0; k < quality.length; k++) {
-                        ssim[k] = quality[k].ssim();
+                    @Override
+                    public void snapshot(long timeUs, float[] truth, byte[] frame, float[][] display, FrameQuality[] quality) {
+                        double[] ssim = new double[quality.length];
+                        for (int k = 0; k < quality.length; k++) {
+                            ssim[k] = quality[k].ssim();
+                        }
+                        sheet.add(timeUs, truth, frame, display, ssim);
                     }
-                    sheet.add(timeUs, truth, frame, display, ssim);
-                }
-            });
+                });
+                perSeedSsim.add(one.methods().stream().mapToDouble(MethodResult::meanSsim).toArray());
+                report = report == null ? one : pool(report, one);
+            }
         }
-        printTable(log, report, methods, durationUs, intervalUs);
+        printTable(log, report, methods, durationUs * seedList.length, intervalUs);
+        if (seedList.length > 1) {
+            log.print("SSIM per seed:");
+            for (int k = 0; k < methods.size(); k++) {
+                StringBuilder b = new StringBuilder();
+                for (double[] ssim : perSeedSsim) {
+                    b.append(b.length() == 0 ? "" : " / ").append(String.format(Locale.ROOT, "%.4f", ssim[k]));
+                }
+                log.printf(Locale.ROOT, "%n  %-16s %s", methods.get(k).label(), b);
+            }
+            log.printf(Locale.ROOT, "  (seeds %s)%n", joined(seedList));
+        }
         if (snapshots > 0) {
             List<String> notes = new ArrayList<>();
             notes.add(String.format(Locale.ROOT, "afterglow assess: scene %s %dx%d, seed %d, background activity %s hz/pixel, "
-                    + "%d hot pixels.", kind.label(), width, height, seed, fmt(noiseHz), hotPixels));
+                    + "%d hot pixels.", kind.label(), width, height, seedList[0], fmt(noiseHz), hotPixels));
             notes.add("Each log image after a per-frame least-squares affine fit to the true log image; black..white = "
                     + "the truth's min..max in that frame. +dn: after " + QualityRun.STANDARD_DENOISE + ".");
             sheet.write(png, notes);
@@ -178,7 +201,7 @@ public final class AssessCommand implements Callable<Integer> {
         log.println("readout = reconstruction read out at the frame time plus the 8-bit tone map; M ev/s = events through "
                 + "the chain per second of this thread's time in it.");
         for (QualityRun.Method m : methods) {
-            log.printf(Locale.ROOT, "  %-16s = %s%n", m.label(), m.chain());
+            log.printf(Locale.ROOT, "  %-16s = %s%n", m.label(), m.describe());
         }
     }
 
@@ -189,7 +212,7 @@ public final class AssessCommand implements Callable<Integer> {
 
     private List<QualityRun.Method> methods() {
         if (chains.isEmpty()) {
-            return QualityRun.standardMethods(contrast);
+            return QualityRun.benchmarkMethods(contrast, frameRateHz > 0);
         }
         List<QualityRun.Method> list = new ArrayList<>();
         Map<String, Integer> used = new HashMap<>();
@@ -202,6 +225,41 @@ public final class AssessCommand implements Callable<Integer> {
             list.add(new QualityRun.Method(n == 1 ? label : label + "#" + n, spec));
         }
         return list;
+    }
+
+    /** Pools the second seed's results into the first's. */
+    private static QualityRun.Report pool(QualityRun.Report a, QualityRun.Report b) {
+        for (int k = 0; k < a.methods().size(); k++) {
+            a.methods().get(k).pool(b.methods().get(k));
+        }
+        return new QualityRun.Report(a.methods(), a.signalEvents() + b.signalEvents(),
+                a.backgroundEvents() + b.backgroundEvents(), a.hotPixelEvents() + b.hotPixelEvents(),
+                a.framesApplied() + b.framesApplied(), a.sensorNs() + b.sensorNs(), a.scoringNs() + b.scoringNs(),
+                a.totalNs() + b.totalNs());
+    }
+
+    private long[] seedList() {
+        if (seeds.equals("validation") || seeds.equals("tuning")) {
+            return BenchmarkSeeds.named(seeds);
+        }
+        String[] parts = seeds.split(",");
+        long[] list = new long[parts.length];
+        for (int i = 0; i < parts.length; i++) {
+            try {
+                list[i] = Long.parseLong(parts[i].trim());
+            } catch (NumberFormatException e) {
+                throw new IllegalArgumentException("--seeds=" + seeds + ": expected validation, tuning or numbers separated by commas");
+            }
+        }
+        return list;
+    }
+
+    private static String joined(long[] values) {
+        StringBuilder b = new StringBuilder();
+        for (long v : values) {
+            b.append(b.length() == 0 ? "" : ",").append(v);
+        }
+        return b.toString();
     }
 
     private void validate() {
@@ -225,6 +283,7 @@ public final class AssessCommand implements Callable<Integer> {
         double intervalMs = frameRateHz > 0 ? 1000 / frameRateHz : 1000;
         check(exposureMs >= 0.01 && exposureMs <= Math.floor(intervalMs * 1000) / 1000,
                 "--exposure=" + exposureMs + " outside [0.01, " + fmt(Math.floor(intervalMs * 1000) / 1000) + "] ms (the frame interval)");
+        seedList();
         check(!Files.exists(out) || Files.isDirectory(out), "--out=" + out + " exists and is not a folder");
     }
 

@@ -661,7 +661,7 @@ public final class SensorPipeline {
         }
         if (chain.reconstruction() instanceof FrameFusion fusion) {
             try {
-                fusion.applyFrame(mid, f.getPixels().asReadOnlyByteBuffer(), f.getBitDepth());
+                fusion.applyFrame(start, end, f.getPixels().asReadOnlyByteBuffer(), f.getBitDepth());
                 lastSensorFrameUs = mid;
             } catch (IllegalArgumentException e) {
                 counters.increment(NodeCounter.SENSOR_FRAMES_REJECTED);

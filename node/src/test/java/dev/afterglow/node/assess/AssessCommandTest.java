@@ -120,7 +120,7 @@ class AssessCommandTest {
     @Test
     void shouldWriteTheSameMetricsAndPictureForTheSameSeed(@TempDir Path a, @TempDir Path b) throws Exception {
         String[] args = {"assess", "--scene", "orchard-pan", "--width", "48", "--height", "36", "--seconds", "1",
-            "--warmup", "0.2", "--snapshots", "1", "--seed", "3"};
+            "--warmup", "0.2", "--snapshots", "1", "--seeds", "3"};
         assertEquals(0, run(concat(args, "--out", a.toString())).code());
         assertEquals(0, run(concat(args, "--out", b.toString())).code());
         assertEquals(-1L, Files.mismatch(a.resolve("orchard-pan-metrics.csv"), b.resolve("orchard-pan-metrics.csv")));
