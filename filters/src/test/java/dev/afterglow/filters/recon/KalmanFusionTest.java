@@ -47,6 +47,42 @@ class KalmanFusionTest {
     }
 
     @Test
+    void shouldCorrectAgainstTheEstimatesOwnExposureAverageWhenTheExposureWasTracked() {
+        // A frame measures the pixel's average over its exposure. With the estimate off the truth by
+        // a constant d (events exact), the average of the estimate over the exposure is off by d too,
+        // so the innovation is z - avg(x) = -d whatever events fell in the exposure, and the update
+        // leaves (1 - K)·d (Kalman update equations, common practice). Taken against the current
+        // estimate instead, the events after the exposure's average would count as error.
+        KalmanFusion f = filter(1, 1, 0.3, 0.3, 0, 0);
+        long period = 50_000;
+        long exposure = 10_000;
+        EventBatch batch = new EventBatch(16);
+        int[] frameValues = {40, 40};
+        // Two frames teach the cadence; the third exposure [100000, 110000) is tracked.
+        for (int k = 0; k < 2; k++) {
+            f.applyFrame(k * period, k * period + exposure, frame(1, frameValues[k]), 8);
+        }
+        double before = f.estimate(0);
+        // Three ON events inside the third exposure, at 102000, 105000 and 108000 us.
+        batch.reset(100_000);
+        for (int t : new int[] {2_000, 5_000, 8_000}) {
+            batch.add(0, 0, 100_000 + t, 1);
+        }
+        f.process(batch);
+        double now = f.estimate(0);
+        assertEquals(before + 3 * C, now, 1e-12);
+        double average = before + C * (8_000 + 5_000 + 2_000) / 10_000.0; // time-weighted share of each step
+        double priorVariance = f.variance(0) + 0.3 * (110_000 - 108_000) * 1e-6;
+        int z = 90;
+        double r = new FrameNoiseModel(0, 0, 0.98).variance(z, 8);
+        double gain = priorVariance / (priorVariance + r);
+        double zLog = Math.log((z + 0.5) / 256);
+        f.applyFrame(100_000, 110_000, frame(1, z), 8);
+        assertEquals(1, f.framesAligned(), "the third frame's exposure was the predicted one, the first two taught it");
+        assertEquals(now + gain * (zLog - average), f.estimate(0), 1e-6);
+    }
+
+    @Test
     void shouldHoldTheFrameExactlyInThePureFrameLimit() {
         // Pure-frame limit: as R -> 0 against an unknown prior, K -> 1 and the update returns the
         // measurement (Kalman update equations, common practice). Here R is quantisation only.

@@ -22,8 +22,9 @@ import picocli.CommandLine.Option;
         description = "Start a node on loopback, stream a synthetic scene into it, print frames and save PNG snapshots.")
 public final class DemoCommand implements Callable<Integer> {
 
-    @Option(names = "--chain", paramLabel = "CHAIN", description = "Chain description (see 'afterglow stages'). Default: ${DEFAULT-VALUE}")
-    String chain = "refractory(period=100us) | background-activity(window=5ms) | high-pass(cutoff=3rad/s, contrast=0.2)";
+    @Option(names = "--chain", paramLabel = "CHAIN", description = "Chain description (see 'afterglow stages'), or 'auto': the default chain for a sensor "
+            + "with frames (the demo's sensor sends them). Default: ${DEFAULT-VALUE}")
+    String chain = "auto";
 
     @Option(names = "--scene", description = "parcel-line, dock-door or orchard-pan. Default: ${DEFAULT-VALUE}")
     String scene = "parcel-line";

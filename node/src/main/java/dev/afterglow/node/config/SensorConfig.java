@@ -2,6 +2,7 @@ package dev.afterglow.node.config;
 
 import dev.afterglow.filters.chain.ChainSpec;
 import dev.afterglow.filters.chain.ChainSpecException;
+import dev.afterglow.filters.chain.DefaultChains;
 import java.util.ArrayList;
 import java.util.List;
 
@@ -13,8 +14,17 @@ public final class SensorConfig {
     public int width;
     /** Sensor height in pixels; 0 for the defaults entry. */
     public int height;
-    /** Chain description. */
-    public String chain = "refractory(period=100us) | background-activity(window=5ms) | high-pass(cutoff=3rad/s, contrast=0.2)";
+    /** The chain setting that picks the default chain by whether the sensor sends frames. */
+    public static final String AUTO = "auto";
+
+    /**
+     * Chain description, or {@value #AUTO}: {@link DefaultChains#WITH_FRAMES} once the sensor's
+     * hello says it sends frames (or its first frame arrives), {@link DefaultChains#EVENTS_ONLY}
+     * until then.
+     */
+    public String chain = AUTO;
+    /** Whether the sensor is known to send frames (from its hello or its frames); picks the automatic chain. */
+    boolean sendsFrames;
     /** Frames per second read out, in sensor time. */
     public double frameRateHz = 50;
     /** Extra frame after this many applied events since the last one; 0: off. */
@@ -62,19 +72,50 @@ public final class SensorConfig {
             udpFrom = new ArrayList<>();
         }
         udpSources = AddressFilter.parse(at + ".udp-from", udpFrom);
+        if (chain == null || chain.isBlank()) {
+            chain = AUTO;
+        }
         try {
-            chainSpec = ChainSpec.parse(chain);
+            chainSpec = resolve();
         } catch (ChainSpecException e) {
             throw new ConfigException(at + ".chain: " + e.getMessage(), e);
         }
     }
 
-    /** The parsed chain. */
+    /** The parsed chain; for {@value #AUTO}, the default for a sensor that does or does not send frames. */
     public ChainSpec chainSpec() {
         if (chainSpec == null) {
-            chainSpec = ChainSpec.parse(chain);
+            chainSpec = resolve();
         }
         return chainSpec;
+    }
+
+    private ChainSpec resolve() {
+        return automaticChain() ? DefaultChains.forSensor(sendsFrames) : ChainSpec.parse(chain);
+    }
+
+    /** True when the chain is {@value #AUTO}: chosen by whether the sensor sends frames. */
+    public boolean automaticChain() {
+        return AUTO.equals(chain.trim());
+    }
+
+    /** Whether the sensor is known to send frames. */
+    public boolean sendsFrames() {
+        return sendsFrames;
+    }
+
+    /** Sets the chain description (or {@value #AUTO}); parsed on next use or by {@link #validate}. */
+    public void setChain(String text) {
+        chain = text;
+        chainSpec = null;
+    }
+
+    /** A copy that knows whether the sensor sends frames (an automatic chain follows it). */
+    public SensorConfig withSendsFrames(boolean frames) {
+        SensorConfig c = copy();
+        c.sendsFrames = frames;
+        c.chainSpec = null;
+        return c;
     }
 
     /** Sources allowed to send this sensor unsealed UDP datagrams. */
@@ -107,6 +148,7 @@ public final class SensorConfig {
         c.latencyBudgetMs = latencyBudgetMs;
         c.toneMap = toneMap;
         c.chainSpec = chainSpec;
+        c.sendsFrames = sendsFrames;
         c.token = token;
         c.udpFrom = new ArrayList<>(udpFrom);
         c.udpSources = udpSources;

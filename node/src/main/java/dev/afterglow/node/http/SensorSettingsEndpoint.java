@@ -171,7 +171,7 @@ public final class SensorSettingsEndpoint {
             }
         }
         if (request.has("chain")) {
-            next.chain = text(request, "chain");
+            next.setChain(text(request, "chain"));
         }
         if (request.has("frame-rate-hz")) {
             next.frameRateHz = number(request, "frame-rate-hz");
@@ -190,7 +190,7 @@ public final class SensorSettingsEndpoint {
             next.toneMap = text(request, "tone-map");
         }
         if (request.has("set")) {
-            next.chain = setParameters(ChainSpec.parse(next.chain), request.get("set")).toString();
+            next.setChain(setParameters(next.chainSpec(), request.get("set")).toString()); // an automatic chain becomes explicit
         }
         return next;
     }
@@ -280,6 +280,7 @@ public final class SensorSettingsEndpoint {
         o.put("width", c.width);
         o.put("height", c.height);
         o.put("chain", c.chainSpec().toString());
+        o.put("chain-automatic", c.automaticChain());
         ArrayNode stages = o.putArray("stages");
         List<StageSpec> specs = c.chainSpec().stages();
         for (int i = 0; i < specs.size(); i++) {

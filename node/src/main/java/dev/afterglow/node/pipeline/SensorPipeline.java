@@ -90,6 +90,24 @@ public final class SensorPipeline {
     private final UdpSequence udpSequence = new UdpSequence();
     /** Host monotonic time (ns) the running task started; 0 while idle. Written by the pipeline thread. */
     private volatile long taskStartNanos;
+    /**
+     * Records whether the sensor sends its own frames (its hello says so, or a frame came). A sensor
+     * on the automatic chain gets the default chain for that, built afresh; any other chain is kept.
+     * Any thread.
+     */
+    public void declareFrames(boolean sendsFrames) {
+        execute(() -> switchAutomaticChain(sendsFrames));
+    }
+
+    private void switchAutomaticChain(boolean sendsFrames) {
+        SensorConfig c = config;
+        if (c.sendsFrames() == sendsFrames) {
+            return;
+        }
+        SensorConfig next = c.withSendsFrames(sendsFrames);
+        applyConfig(next, c.automaticChain() ? Chain.build(next.chainSpec(), width, height) : chain);
+    }
+
     /** Host monotonic time (ns) a packet or frame was last offered (for idle eviction). */
     private volatile long lastInputNanos;
     /** Host monotonic time (ns) the last task finished. */
@@ -251,6 +269,7 @@ public final class SensorPipeline {
         });
         return applied;
     }
+
 
     /** Host monotonic time (ns) a packet or frame was last offered, or the pipeline was made. Any thread. */
     public long lastInputNanos() {
@@ -658,6 +677,9 @@ public final class SensorPipeline {
                 || (lastFrameUs != Long.MIN_VALUE && mid < lastFrameUs - RESTART_THRESHOLD_US)) {
             counters.increment(NodeCounter.SENSOR_FRAMES_REJECTED);
             return;
+        }
+        if (!config.sendsFrames()) {
+            switchAutomaticChain(true); // the hello did not say so, but frames come
         }
         if (chain.reconstruction() instanceof FrameFusion fusion) {
             try {

@@ -136,6 +136,7 @@ public final class SensorRegistry {
             activeTcp.put(id, channel);
         }
         p.setConnected(true);
+        p.declareFrames(hello.getSendsFrames());
         return new Attach(p, null, null);
     }
 

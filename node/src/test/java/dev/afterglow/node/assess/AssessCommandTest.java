@@ -76,20 +76,22 @@ class AssessCommandTest {
     @Test
     void shouldPrintTableAndWriteCsvAndLabelledContactSheet(@TempDir Path dir) throws Exception {
         Result r = run("assess", "--scene", "dock-door", "--width", "64", "--height", "48", "--seconds", "1.5",
-                "--eval-rate", "10", "--warmup", "0.5", "--snapshots", "2", "--out", dir.toString());
+                "--eval-rate", "10", "--warmup", "0.5", "--snapshots", "2", "--seeds", "5,6", "--out", dir.toString());
         assertEquals(0, r.code(), r.err());
         String out = r.out();
         assertTrue(out.contains("least-squares affine fit"), out);
-        for (String label : List.of("direct", "direct+dn", "high-pass", "high-pass+dn", "complementary", "complementary+dn")) {
+        List<String> labels = List.of("flat", "hold-frame", "plain-comp", "high-pass+dn", "default");
+        for (String label : labels) {
             assertTrue(out.lines().anyMatch(l -> l.startsWith(label + " ")), label + " missing in\n" + out);
         }
-        assertTrue(out.contains("mean of 11 evaluations"), out);
+        assertTrue(out.contains("mean of 22 evaluations"), "11 per seed, pooled over two seeds\n" + out);
+        assertTrue(out.contains("SSIM per seed"), out);
 
         List<String> csv = Files.readAllLines(dir.resolve("dock-door-metrics.csv"));
-        assertEquals("time_s,method,ssim,psnr_db,mae_log,fit_scale,fit_offset,chain", csv.get(0));
-        assertEquals(1 + 15 * 6, csv.size());
-        assertTrue(csv.get(1).startsWith("0.100,direct,"), csv.get(1));
-        assertTrue(csv.get(csv.size() - 1).startsWith("1.500,complementary+dn,"), csv.get(csv.size() - 1));
+        assertEquals("seed,time_s,method,ssim,psnr_db,mae_log,fit_scale,fit_offset,chain", csv.get(0));
+        assertEquals(1 + 2 * 15 * labels.size(), csv.size());
+        assertTrue(csv.get(1).startsWith("5,0.100,flat,"), csv.get(1));
+        assertTrue(csv.get(csv.size() - 1).startsWith("6,1.500,default,"), csv.get(csv.size() - 1));
 
         BufferedImage png = ImageIO.read(dir.resolve("dock-door-contact.png").toFile());
         assertTrue(png.getWidth() > 8 * 64 && png.getHeight() > 2 * 48, png.getWidth() + "x" + png.getHeight());

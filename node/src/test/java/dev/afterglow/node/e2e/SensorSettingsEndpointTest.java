@@ -8,6 +8,7 @@ import com.fasterxml.jackson.databind.JsonNode;
 import com.fasterxml.jackson.databind.ObjectMapper;
 import dev.afterglow.filters.EventBatch;
 import dev.afterglow.filters.chain.ChainSpec;
+import dev.afterglow.filters.chain.DefaultChains;
 import dev.afterglow.node.AfterglowNode;
 import dev.afterglow.node.client.SensorClient;
 import dev.afterglow.node.client.SubscriberClient;
@@ -17,6 +18,8 @@ import dev.afterglow.node.pipeline.SensorPipeline;
 import dev.afterglow.node.stats.NodeCounter;
 import dev.afterglow.proto.v1.IntensityFrame;
 import dev.afterglow.proto.v1.PixelFormat;
+import dev.afterglow.proto.v1.SensorFrame;
+import com.google.protobuf.ByteString;
 import java.net.URI;
 import java.net.http.HttpClient;
 import java.net.http.HttpRequest;
@@ -178,6 +181,46 @@ class SensorSettingsEndpointTest {
             assertSame(chainBefore, pipeline.chain());
             assertEquals(ChainSpec.parse(CHAIN).toString(),
                     json.readTree(send(node, "GET", "/config/sensors/belt", null, null).body()).path("chain").asText());
+        }
+    }
+
+    @Test
+    void shouldPickTheAutomaticChainByWhetherTheSensorSendsFrames() throws Exception {
+        NodeConfig config = NodeConfig.parse("""
+                listen: {ingest-tcp-port: 0, ingest-udp-port: -1, subscriber-port: 0, http-port: 0}
+                control: {enabled: true}
+                sensor-defaults: {chain: auto}
+                sensors:
+                  - {id: listed, width: %d, height: %d}
+                """.formatted(W, H), "test");
+        try (AfterglowNode node = AfterglowNode.start(config)) {
+            String eventsOnly = DefaultChains.forSensor(false).toString();
+            String withFrames = DefaultChains.forSensor(true).toString();
+            JsonNode before = json.readTree(send(node, "GET", "/config/sensors/listed", null, null).body());
+            assertEquals(eventsOnly, before.path("chain").asText(), "before any hello: the events-only default");
+            assertTrue(before.path("chain-automatic").asBoolean());
+            try (SensorClient framed = SensorClient.connect("127.0.0.1", node.ingestTcpPort(), "listed", W, H, true);
+                    SensorClient plain = SensorClient.connect("127.0.0.1", node.ingestTcpPort(), "unlisted", W, H, false)) {
+                framed.flush();
+                plain.flush();
+                StreamingEndToEndTest.waitFor(() -> node.sensors().get("unlisted") != null
+                        && node.sensors().get("listed").chain().spec().toString().equals(withFrames));
+                assertEquals(withFrames, json.readTree(send(node, "GET", "/config/sensors/listed", null, null).body())
+                        .path("chain").asText(), "hello with sends_frames: the fusion default");
+                SensorPipeline unlisted = node.sensors().get("unlisted");
+                unlisted.loop().submit(() -> { }).get();
+                assertEquals(eventsOnly, unlisted.chain().spec().toString(), "hello without frames: the events-only default");
+                // A frame from a sensor whose hello said nothing of frames: it sends them after all.
+                plain.sendFrame(SensorFrame.newBuilder().setSensorId("unlisted").setExposureStartUs(1_000).setExposureEndUs(2_000)
+                        .setWidth(W).setHeight(H).setBitDepth(8).setPixels(ByteString.copyFrom(new byte[W * H])).build());
+                plain.flush();
+                StreamingEndToEndTest.waitFor(() -> unlisted.chain().spec().toString().equals(withFrames));
+                // A chain set over HTTP stays, frames or not.
+                HttpResponse<String> set = send(node, "PATCH", "/config/sensors/listed", "{\"chain\": \"" + CHAIN + "\"}", null);
+                assertEquals(200, set.statusCode(), set.body());
+                assertTrue(!json.readTree(set.body()).path("chain-automatic").asBoolean());
+                assertEquals(ChainSpec.parse(CHAIN).toString(), node.sensors().get("listed").chain().spec().toString());
+            }
         }
     }
 

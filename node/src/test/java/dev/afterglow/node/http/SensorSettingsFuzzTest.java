@@ -12,6 +12,7 @@ import com.fasterxml.jackson.databind.node.ArrayNode;
 import com.fasterxml.jackson.databind.node.JsonNodeFactory;
 import com.fasterxml.jackson.databind.node.ObjectNode;
 import dev.afterglow.filters.chain.ChainSpec;
+import dev.afterglow.filters.chain.DefaultChains;
 import dev.afterglow.filters.fuzz.FuzzInputs;
 import dev.afterglow.filters.fuzz.FuzzTarget;
 import dev.afterglow.node.config.SensorConfig;
@@ -40,7 +41,7 @@ class SensorSettingsFuzzTest {
     private static final JsonNodeFactory NODES = JsonNodeFactory.instance;
     private static final String[] KEYS = {"chain", "set", "frame-rate-hz", "readout-every-events",
         "latency-budget-ms", "tone-map", "frame-rate", "Chain", "id", "width", ""};
-    private static final String[] CHAINS = {
+    private static final String[] CHAINS = {"auto", " auto ",
         "refractory(period=100us) | background-activity(window=5ms) | high-pass(cutoff=3rad/s, contrast=0.2)",
         "high-pass", "direct-integration(contrast=0.3)", "hot-pixel | correlation(window=2ms, support=3) | complementary",
         "refractory | refractory(period=2ms) | high-pass(cutoff=2Hz)", "background-activity(window=5ms) | high-pass(cutoff=3rad/s)"};
@@ -81,7 +82,8 @@ class SensorSettingsFuzzTest {
         SensorConfig next = change.next();
         assertNotNull(next);
         next.validate("cam");
-        assertEquals(ChainSpec.parse(next.chain), next.chainSpec(), "the chain text and its parsed form agree");
+        assertEquals(next.automaticChain() ? DefaultChains.forSensor(next.sendsFrames()) : ChainSpec.parse(next.chain),
+                next.chainSpec(), "the chain text (or auto) and its parsed form agree");
         assertEquals(!next.chainSpec().equals(current.chainSpec()), change.chainChanged(), "chain-restarted is right");
         assertTrue(next.frameRateHz >= 1 && next.frameRateHz <= 1000, "frame-rate-hz in range");
         assertTrue(next.latencyBudgetMs >= 1 && next.latencyBudgetMs <= 10_000, "latency-budget-ms in range");
