@@ -84,11 +84,14 @@ public enum StageKind {
             new Param("event-noise", Unit.NUMBER, 0.3, 0, 10, "standard deviation of one event's step, as a fraction of C"),
             new Param("shot-gain", Unit.NUMBER, 0.5, 0, 100, "frame shot noise: variance per count of signal, in 8-bit counts"),
             new Param("read-noise", Unit.NUMBER, 2, 0, 100, "frame read noise, standard deviation in 8-bit counts"),
-            new Param("saturated", Unit.NUMBER, 0.98, 0.01, 1, "fraction of full scale at and above which a frame pixel carries no measurement"))) {
+            new Param("saturated", Unit.NUMBER, 0.98, 0.01, 1, "fraction of full scale at and above which a frame pixel carries no measurement"),
+            new Param("learn-noise", Unit.INTEGER, 1, 0, 1, "1: learn read noise and shot gain from the sensor's frames "
+                    + "(starting from the values given); 0: keep the values given"))) {
         @Override
         EventStage build(StageSpec s, int w, int h) {
             return new KalmanFusion(w, h, s.get("contrast"), s.get("process-noise"), s.get("event-noise"),
-                    new FrameNoiseModel(s.get("shot-gain"), s.get("read-noise"), s.get("saturated")), s.toString());
+                    new FrameNoiseModel(s.get("shot-gain"), s.get("read-noise"), s.get("saturated")),
+                    s.get("learn-noise") == 1, s.toString());
         }
     },
     /** {@link ComplementaryFilter}. */

@@ -41,6 +41,21 @@ public final class FrameNoiseModel {
         this.saturatedFraction = saturatedFraction;
     }
 
+    /** Shot gain g in 8-bit counts. */
+    public double shotGain8() {
+        return shotGain8;
+    }
+
+    /** Read noise r in 8-bit counts. */
+    public double readNoise8() {
+        return readNoise8;
+    }
+
+    /** Fraction of full scale at and above which a pixel is saturated. */
+    public double saturatedFraction() {
+        return saturatedFraction;
+    }
+
     /** Log intensity of pixel value {@code v} at {@code bits} per pixel. */
     public double log(int v, int bits) {
         prepare(bits);

@@ -36,6 +36,8 @@ import java.nio.ByteOrder;
 public final class KalmanFusion implements FrameFusion {
     /** Variance of a pixel nothing is known about yet (log units²). */
     static final double UNKNOWN_VARIANCE = 1e6;
+    /** Frames between fits of the learned noise model. */
+    static final int FRAMES_PER_NOISE_FIT = 10;
     /** Longest frame interval whose cadence is tracked. */
     static final long MAX_FRAME_PERIOD_US = 2_000_000;
 
@@ -44,7 +46,12 @@ public final class KalmanFusion implements FrameFusion {
     private final double contrast;
     private final double processNoisePerUs;
     private final double eventVariance;
-    private final FrameNoiseModel frameNoise;
+    private FrameNoiseModel frameNoise;
+    /** Learns the frame noise online; null when the configured model stands. */
+    private final FrameNoiseEstimator noiseEstimator;
+    /** 1 where an event arrived since the last frame (for the noise estimator). */
+    private final byte[] changedSinceFrame;
+    private int framesSinceFit;
     private final double[] estimate;
     private final double[] variance;
     private final long[] updatedUs;
@@ -75,11 +82,12 @@ public final class KalmanFusion implements FrameFusion {
      * @param contrast contrast threshold C in log units, 0.01 .. 2
      * @param processNoise q, log units² per second the scene may drift, (0, 1e4]
      * @param eventNoise standard deviation of one event's step as a fraction of C, [0, 10]
-     * @param frameNoise the frames' noise model
+     * @param frameNoise the frames' noise model (the starting point when learning)
+     * @param learnNoise whether to learn the frames' read noise and shot gain online ({@link FrameNoiseEstimator})
      * @param description the stage's parameters in chain-description syntax
      */
     public KalmanFusion(int width, int height, double contrast, double processNoise, double eventNoise,
-            FrameNoiseModel frameNoise, String description) {
+            FrameNoiseModel frameNoise, boolean learnNoise, String description) {
         ReconstructionChecks.contrast("kalman-fusion", contrast);
         if (!(processNoise > 0 && processNoise <= 1e4)) {
             throw new IllegalArgumentException("kalman-fusion.process-noise=" + processNoise + " outside (0, 1e4]");
@@ -100,6 +108,8 @@ public final class KalmanFusion implements FrameFusion {
         this.updatedUs = new long[n];
         this.atExposureStart = new float[n];
         this.exposureShare = new float[n];
+        this.noiseEstimator = learnNoise ? new FrameNoiseEstimator(n, frameNoise.readNoise8(), frameNoise.shotGain8()) : null;
+        this.changedSinceFrame = learnNoise ? new byte[n] : null;
         java.util.Arrays.fill(variance, UNKNOWN_VARIANCE);
         java.util.Arrays.fill(updatedUs, Long.MIN_VALUE);
     }
@@ -125,6 +135,7 @@ public final class KalmanFusion implements FrameFusion {
         double re = eventVariance;
         long base = batch.timeBaseUs;
         float[] share = exposureShare;
+        byte[] changed = changedSinceFrame;
         boolean open = exposurePhase == OPEN;
         double sharePerUs = open ? c / (exposureEndUs - exposureStartUs) : 0;
         long end = exposureEndUs;
@@ -139,6 +150,9 @@ public final class KalmanFusion implements FrameFusion {
             }
             if (open) {
                 share[idx] += (float) (ps[i] * sharePerUs * (end - t));
+            }
+            if (changed != null) {
+                changed[idx] = 1;
             }
             long before = last[idx];
             long dt = before == Long.MIN_VALUE ? 0 : t - before;
@@ -235,6 +249,17 @@ public final class KalmanFusion implements FrameFusion {
         if (pixels.remaining() != n * bytesPer) {
             throw new IllegalArgumentException("frame of " + pixels.remaining() + " bytes, expected " + n * bytesPer);
         }
+        if (noiseEstimator != null) {
+            noiseEstimator.observe(pixels, bitDepth, changedSinceFrame, 255 * frameNoise.saturatedFraction());
+            java.util.Arrays.fill(changedSinceFrame, (byte) 0);
+            if (++framesSinceFit >= FRAMES_PER_NOISE_FIT) {
+                framesSinceFit = 0;
+                if (noiseEstimator.refit()) {
+                    frameNoise = new FrameNoiseModel(noiseEstimator.shotGain8(), noiseEstimator.readNoise8(),
+                            frameNoise.saturatedFraction());
+                }
+            }
+        }
         double[] zs = frameNoise.logs(bitDepth);
         double[] rs = frameNoise.variances(bitDepth);
         int max = (1 << bitDepth) - 1;
@@ -285,6 +310,11 @@ public final class KalmanFusion implements FrameFusion {
     /** Frames applied so far. */
     public long framesApplied() {
         return framesApplied;
+    }
+
+    /** The frame noise model in use (learned, when learning is on). */
+    public FrameNoiseModel frameNoise() {
+        return frameNoise;
     }
 
     /** Frames whose exposure was the predicted one (the rest were taken against the current estimate). */

@@ -15,7 +15,7 @@ class KalmanFusionTest {
     private static final double C = 0.2;
 
     private static KalmanFusion filter(int w, int h, double q, double eventNoise, double shot, double read) {
-        return new KalmanFusion(w, h, C, q, eventNoise, new FrameNoiseModel(shot, read, 0.98), "kalman-fusion");
+        return new KalmanFusion(w, h, C, q, eventNoise, new FrameNoiseModel(shot, read, 0.98), false, "kalman-fusion");
     }
 
     private static ByteBuffer frame(int n, int value) {
@@ -155,7 +155,7 @@ class KalmanFusionTest {
         double q = 0.2;
         double eventNoise = 0.4;
         FrameNoiseModel model = new FrameNoiseModel(0.7, 3, 0.95);
-        KalmanFusion fast = new KalmanFusion(w, h, C, q, eventNoise, model, "kalman-fusion");
+        KalmanFusion fast = new KalmanFusion(w, h, C, q, eventNoise, model, false, "kalman-fusion");
         RandomEventStream s = RandomEventStream.builder(w, h, 5).build();
         int n = w * h;
         double[] x = new double[n];
