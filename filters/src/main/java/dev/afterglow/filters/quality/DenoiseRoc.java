@@ -132,6 +132,35 @@ public final class DenoiseRoc {
         }
     }
 
+    /**
+     * The windows every standard family is swept over: 0.1 ms to 1 s, about three per decade, dense
+     * enough that the trapezoids follow the curve.
+     */
+    public static final List<String> WINDOWS = List.of("100us", "200us", "300us", "500us", "700us", "1ms", "1.5ms",
+            "2ms", "3ms", "5ms", "7ms", "10ms", "15ms", "20ms", "30ms", "50ms", "70ms", "100ms", "150ms", "200ms",
+            "300ms", "500ms", "1s");
+
+    /** {@code background-activity} over its window. */
+    public static Family backgroundActivity() {
+        return Family.ofChain("background-activity", "window", WINDOWS, v -> "background-activity(window=" + v + ")");
+    }
+
+    /** {@code correlation} at {@code support} neighbours of 8, over its window. */
+    public static Family correlation(int support) {
+        return Family.ofChain("correlation k=" + support, "window", WINDOWS,
+                v -> "correlation(window=" + v + ", support=" + support + ")");
+    }
+
+    /** {@code patch-support} at its default support and radius, over its window. */
+    public static Family patchSupport() {
+        return Family.ofChain("patch-support", "window", WINDOWS, v -> "patch-support(window=" + v + ")");
+    }
+
+    /** Background-activity, correlation at support 2 and 3, and patch-support, each over its window. */
+    public static List<Family> standardFamilies() {
+        return List.of(backgroundActivity(), correlation(2), correlation(3), patchSupport());
+    }
+
     private final List<Family> families;
     private final int count;
     private final SurvivorTally[] tallies;
