@@ -184,6 +184,21 @@ public record SensorConfig(int width, int height, double contrast, double mismat
             return this;
         }
 
+        /** Background-activity rate per pixel in Hz, as set so far. */
+        public double backgroundRateHz() {
+            return backgroundRateHz;
+        }
+
+        /** Irradiance at full scale, as set so far. */
+        public double fullScale() {
+            return fullScale;
+        }
+
+        /** Read noise of the frames in 8-bit steps, as set so far. */
+        public double readNoiseDn() {
+            return readNoiseDn;
+        }
+
         /** Longest render step in microseconds. */
         public Builder maxStepUs(int us) {
             this.maxStepUs = us;

@@ -5,7 +5,6 @@ import static org.junit.jupiter.api.Assertions.assertTrue;
 import dev.afterglow.filters.quality.QualityRun.MethodResult;
 import dev.afterglow.filters.synth.EventLabel;
 import dev.afterglow.filters.synth.SceneKind;
-import dev.afterglow.filters.synth.SensorConfig;
 import java.util.EnumMap;
 import java.util.List;
 import java.util.Locale;
@@ -38,7 +37,7 @@ class SceneQualityOrderingTest {
 
     private static synchronized List<MethodResult> run(SceneKind kind) {
         return RUNS.computeIfAbsent(kind, k -> new QualityRun(new QualityRun.Settings(
-                k.create(WIDTH, HEIGHT, 7), SensorConfig.builder(WIDTH, HEIGHT).seed(7).build(),
+                k.create(WIDTH, HEIGHT, 7), k.sensor(WIDTH, HEIGHT).seed(7).build(),
                 DURATION_US, 200_000, 1_000_000, new long[0], QualityRun.standardMethods(0.2)))
                 .run(new QualityRun.Observer() { }).methods());
     }
@@ -56,7 +55,8 @@ class SceneQualityOrderingTest {
     }
 
     @ParameterizedTest
-    @EnumSource(SceneKind.class)
+    // The three scenes these orderings were established on; the failure-mode scenes are assessed elsewhere.
+    @EnumSource(value = SceneKind.class, names = {"PARCEL_LINE", "DOCK_DOOR", "ORCHARD_PAN"})
     void directIntegrationShouldScoreWorst(SceneKind kind) {
         for (int variant : new int[] {0, DENOISED}) {
             double direct = ssim(kind, DIRECT + variant);
@@ -66,7 +66,8 @@ class SceneQualityOrderingTest {
     }
 
     @ParameterizedTest
-    @EnumSource(SceneKind.class)
+    // The three scenes these orderings were established on; the failure-mode scenes are assessed elsewhere.
+    @EnumSource(value = SceneKind.class, names = {"PARCEL_LINE", "DOCK_DOOR", "ORCHARD_PAN"})
     void highPassShouldBeatDirectIntegrationUnderNoise(SceneKind kind) {
         assertTrue(ssim(kind, HIGH_PASS) > ssim(kind, DIRECT), table(kind));
     }

@@ -67,9 +67,9 @@ class ScenesTest {
         long durationUs = switch (kind) {
             case PARCEL_LINE -> 1_000_000;
             case DOCK_DOOR -> 2_000_000;
-            case ORCHARD_PAN -> 3_000_000;
+            default -> 3_000_000;
         };
-        SyntheticSensor sensor = new SyntheticSensor(kind.create(w, h, 7), SensorConfig.builder(w, h).frames(0, 1).seed(7).build());
+        SyntheticSensor sensor = new SyntheticSensor(kind.create(w, h, 7), kind.sensor(w, h).frames(0, 1).seed(7).build());
         EventBatch batch = new EventBatch(1 << 16);
         long events = 0;
         while (sensor.timeUs() < durationUs) {

@@ -36,7 +36,9 @@ import picocli.CommandLine.Option;
                         + "sigma 1.5, K1 0.01, K2 0.03) are computed there, MAE in natural-log units."})
 public final class AssessCommand implements Callable<Integer> {
 
-    @Option(names = "--scene", paramLabel = "NAME", description = "Scene: parcel-line, dock-door or orchard-pan. Default: ${DEFAULT-VALUE}")
+    @Option(names = "--scene", paramLabel = "NAME", description = "Scene: parcel-line, dock-door, orchard-pan, floodlit-hoist, "
+            + "stockroom-pan or rink-shot, each also as NAME_dark (8x less light). The scene sets the sensor's conditions; "
+            + "the options below change them. Default: ${DEFAULT-VALUE}")
     String scene = SceneKind.PARCEL_LINE.label();
 
     @Option(names = "--seconds", description = "Sensor time to simulate, 0.5 .. 120 s. Default: ${DEFAULT-VALUE}")
@@ -62,24 +64,28 @@ public final class AssessCommand implements Callable<Integer> {
     @Option(names = "--snapshots", description = "Rows of the contact sheet, 0 .. 8. Default: ${DEFAULT-VALUE}")
     int snapshots = 3;
 
-    @Option(names = "--noise", description = "Background activity per pixel, 0 .. 100 Hz. Default: ${DEFAULT-VALUE}")
-    double noiseHz = 1.0;
+    // Sensor options are null unless given: the scene's conditions (SceneKind.sensor) apply.
+    @Option(names = "--noise", description = "Background activity per pixel, 0 .. 100 Hz. Default: the scene's "
+            + "(1 Hz; stockroom-pan 5 Hz; _dark variants x3).")
+    Double noiseHz;
 
-    @Option(names = "--hot-pixels", description = "Number of hot pixels (500 Hz each), 0 .. 1000. Default: ${DEFAULT-VALUE}")
-    int hotPixels = 5;
+    @Option(names = "--hot-pixels", description = "Number of hot pixels (500 Hz each), 0 .. 1000. Default: the scene's (5).")
+    Integer hotPixels;
 
     @Option(names = "--contrast", description = "Sensor contrast threshold C in log units, 0.05 .. 1; also the chains' "
-            + "default contrast. Default: ${DEFAULT-VALUE}")
-    double contrast = 0.2;
+            + "default contrast. Default: the scene's (0.2).")
+    Double contrast;
 
-    @Option(names = "--mismatch", description = "Threshold mismatch (standard deviation as a fraction of C), 0 .. 0.5. Default: ${DEFAULT-VALUE}")
-    double mismatch = 0.03;
+    @Option(names = "--mismatch", description = "Threshold mismatch (standard deviation as a fraction of C), 0 .. 0.5. "
+            + "Default: the scene's (0.03).")
+    Double mismatch;
 
-    @Option(names = "--frame-rate", description = "Rate of the sensor's own frames, 0 (none) .. 200 Hz. Default: ${DEFAULT-VALUE}")
-    double frameRateHz = 20;
+    @Option(names = "--frame-rate", description = "Rate of the sensor's own frames, 0 (none) .. 200 Hz. Default: the scene's (20 Hz).")
+    Double frameRateHz;
 
-    @Option(names = "--exposure", description = "Exposure of each sensor frame in ms, 0.01 .. the frame interval. Default: ${DEFAULT-VALUE}")
-    double exposureMs = 10;
+    @Option(names = "--exposure", description = "Exposure of each sensor frame in ms, 0.01 .. the frame interval. "
+            + "Default: the scene's (10 ms).")
+    Double exposureMs;
 
     @Option(names = "--seed", description = "Seed of the scene and the sensor. Default: ${DEFAULT-VALUE}")
     long seed = 7;
@@ -91,10 +97,8 @@ public final class AssessCommand implements Callable<Integer> {
     public Integer call() throws IOException {
         validate();
         SceneKind kind = SceneKind.byLabel(scene);
-        List<QualityRun.Method> methods = methods();
-        SensorConfig sensor = SensorConfig.builder(width, height).contrast(contrast).mismatch(mismatch)
-                .backgroundRateHz(noiseHz).hotPixels(hotPixels, 500).frames(frameRateHz, (int) Math.round(exposureMs * 1000))
-                .seed(seed).build();
+        SensorConfig sensor = sensor(kind);
+        List<QualityRun.Method> methods = methods(sensor.contrast());
         long durationUs = Math.round(seconds * 1e6);
         long intervalUs = Math.round(1e6 / evalRateHz);
         long[] snaps = new long[snapshots];
@@ -108,9 +112,10 @@ public final class AssessCommand implements Callable<Integer> {
         log.printf(Locale.ROOT, "afterglow assess: scene %s %dx%d (%s), %.1f s of sensor time, seed %d%n",
                 kind.label(), width, height, kind.summary(), seconds, seed);
         log.printf(Locale.ROOT, "sensor: C=%s with %.0f%% mismatch, refractory %d us, background activity %s Hz/pixel, "
-                        + "%d hot pixels at 500 Hz, jitter %s us, frames %s Hz with %s ms exposure (8-bit, full scale 1, read noise %s)%n",
-                fmt(contrast), mismatch * 100, sensor.refractoryUs(), fmt(noiseHz), hotPixels, fmt(sensor.jitterUs()),
-                fmt(frameRateHz), fmt(exposureMs), fmt(sensor.readNoiseDn()));
+                        + "%d hot pixels at %s Hz, jitter %s us, frames %s Hz with %s ms exposure (8-bit, full scale %s, read noise %s)%n",
+                fmt(sensor.contrast()), sensor.mismatch() * 100, sensor.refractoryUs(), fmt(sensor.backgroundRateHz()),
+                sensor.hotPixels(), fmt(sensor.hotPixelRateHz()), fmt(sensor.jitterUs()), fmt(sensor.frameRateHz()),
+                fmt(sensor.exposureUs() / 1000.0), fmt(sensor.fullScale()), fmt(sensor.readNoiseDn()));
 
         ContactSheet sheet = new ContactSheet(width, height, methods.stream().map(QualityRun.Method::label).toList());
         QualityRun.Report report;
@@ -144,7 +149,7 @@ public final class AssessCommand implements Callable<Integer> {
         if (snapshots > 0) {
             List<String> notes = new ArrayList<>();
             notes.add(String.format(Locale.ROOT, "afterglow assess: scene %s %dx%d, seed %d, background activity %s hz/pixel, "
-                    + "%d hot pixels.", kind.label(), width, height, seed, fmt(noiseHz), hotPixels));
+                    + "%d hot pixels.", kind.label(), width, height, seed, fmt(sensor.backgroundRateHz()), sensor.hotPixels()));
             notes.add("Each log image after a per-frame least-squares affine fit to the true log image; black..white = "
                     + "the truth's min..max in that frame. +dn: after " + QualityRun.STANDARD_DENOISE + ".");
             sheet.write(png, notes);
@@ -187,7 +192,32 @@ public final class AssessCommand implements Callable<Integer> {
         return Double.isNaN(kept) ? Double.NaN : 100 * (1 - kept);
     }
 
-    private List<QualityRun.Method> methods() {
+    /** The scene's sensor conditions with the options given on top. */
+    private SensorConfig sensor(SceneKind kind) {
+        SensorConfig scene = kind.sensor(width, height).seed(seed).build();
+        SensorConfig.Builder b = scene.toBuilder();
+        if (contrast != null) {
+            b.contrast(contrast);
+        }
+        if (mismatch != null) {
+            b.mismatch(mismatch);
+        }
+        if (noiseHz != null) {
+            b.backgroundRateHz(noiseHz);
+        }
+        if (hotPixels != null) {
+            b.hotPixels(hotPixels, scene.hotPixelRateHz());
+        }
+        double rate = frameRateHz != null ? frameRateHz : scene.frameRateHz();
+        double exposure = exposureMs != null ? exposureMs : scene.exposureUs() / 1000.0;
+        double intervalMs = rate > 0 ? 1000 / rate : 1000;
+        check(exposure >= 0.01 && exposure <= Math.floor(intervalMs * 1000) / 1000,
+                "--exposure=" + exposure + " outside [0.01, " + fmt(Math.floor(intervalMs * 1000) / 1000) + "] ms (the frame interval)");
+        b.frames(rate, (int) Math.round(exposure * 1000));
+        return b.build();
+    }
+
+    private List<QualityRun.Method> methods(double contrast) {
         if (chains.isEmpty()) {
             return QualityRun.standardMethods(contrast);
         }
@@ -216,15 +246,13 @@ public final class AssessCommand implements Callable<Integer> {
         check(evalRateHz * (seconds - warmupS) >= 1, "--eval-rate=" + evalRateHz + " leaves no evaluation after --warmup="
                 + warmupS + " within --seconds=" + seconds);
         check(snapshots >= 0 && snapshots <= 8, "--snapshots=" + snapshots + " outside [0, 8]");
-        check(noiseHz >= 0 && noiseHz <= 100, "--noise=" + noiseHz + " outside [0, 100]");
-        check(hotPixels >= 0 && hotPixels <= 1000, "--hot-pixels=" + hotPixels + " outside [0, 1000]");
-        check(hotPixels <= width * height / 10, "--hot-pixels=" + hotPixels + " > 10% of the " + width * height + " pixels");
-        check(contrast >= 0.05 && contrast <= 1, "--contrast=" + contrast + " outside [0.05, 1]");
-        check(mismatch >= 0 && mismatch <= 0.5, "--mismatch=" + mismatch + " outside [0, 0.5]");
-        check(frameRateHz >= 0 && frameRateHz <= 200, "--frame-rate=" + frameRateHz + " outside [0, 200]");
-        double intervalMs = frameRateHz > 0 ? 1000 / frameRateHz : 1000;
-        check(exposureMs >= 0.01 && exposureMs <= Math.floor(intervalMs * 1000) / 1000,
-                "--exposure=" + exposureMs + " outside [0.01, " + fmt(Math.floor(intervalMs * 1000) / 1000) + "] ms (the frame interval)");
+        check(noiseHz == null || noiseHz >= 0 && noiseHz <= 100, "--noise=" + noiseHz + " outside [0, 100]");
+        check(hotPixels == null || hotPixels >= 0 && hotPixels <= 1000, "--hot-pixels=" + hotPixels + " outside [0, 1000]");
+        check(hotPixels == null || hotPixels <= width * height / 10, "--hot-pixels=" + hotPixels + " > 10% of the "
+                + width * height + " pixels");
+        check(contrast == null || contrast >= 0.05 && contrast <= 1, "--contrast=" + contrast + " outside [0.05, 1]");
+        check(mismatch == null || mismatch >= 0 && mismatch <= 0.5, "--mismatch=" + mismatch + " outside [0, 0.5]");
+        check(frameRateHz == null || frameRateHz >= 0 && frameRateHz <= 200, "--frame-rate=" + frameRateHz + " outside [0, 200]");
         check(!Files.exists(out) || Files.isDirectory(out), "--out=" + out + " exists and is not a folder");
     }
 

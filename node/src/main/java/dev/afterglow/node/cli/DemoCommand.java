@@ -25,7 +25,8 @@ public final class DemoCommand implements Callable<Integer> {
     @Option(names = "--chain", paramLabel = "CHAIN", description = "Chain description (see 'afterglow stages'). Default: ${DEFAULT-VALUE}")
     String chain = "refractory(period=100us) | background-activity(window=5ms) | high-pass(cutoff=3rad/s, contrast=0.2)";
 
-    @Option(names = "--scene", description = "parcel-line, dock-door or orchard-pan. Default: ${DEFAULT-VALUE}")
+    @Option(names = "--scene", description = "parcel-line, dock-door, orchard-pan, floodlit-hoist, stockroom-pan or rink-shot, each also as NAME_dark "
+            + "(8x less light); the scene sets the sensor's conditions. Default: ${DEFAULT-VALUE}")
     String scene = "parcel-line";
 
     @Option(names = "--seconds", description = "How long to run, 1 .. 3600 s. Default: ${DEFAULT-VALUE}")
@@ -43,8 +44,8 @@ public final class DemoCommand implements Callable<Integer> {
     @Option(names = "--watch-rate", description = "Subscriber's frame rate, 1 .. 1000 Hz. Default: ${DEFAULT-VALUE}")
     double watchRate = 10;
 
-    @Option(names = "--noise", description = "Background activity per pixel in Hz, 0 .. 100. Default: ${DEFAULT-VALUE}")
-    double noiseHz = 1;
+    @Option(names = "--noise", description = "Background activity per pixel in Hz, 0 .. 100. Default: the scene's (1 Hz; stockroom-pan 5 Hz, _dark variants x3).")
+    Double noiseHz;
 
     @Option(names = "--out", description = "Folder for PNG snapshots. Default: ${DEFAULT-VALUE}")
     Path out = Path.of("demo-out");
@@ -60,7 +61,9 @@ public final class DemoCommand implements Callable<Integer> {
         Checks.range("--height", height, SceneKind.MIN_HEIGHT, 720);
         Checks.range("--rate", rate, 1, 1000);
         Checks.range("--watch-rate", watchRate, 1, 1000);
-        Checks.range("--noise", noiseHz, 0, 100);
+        if (noiseHz != null) {
+            Checks.range("--noise", noiseHz, 0, 100);
+        }
         Checks.range("--save-every", saveEvery, 1, 100_000);
         String sensorId = kind.label();
         NodeConfig config = NodeConfig.parse("""

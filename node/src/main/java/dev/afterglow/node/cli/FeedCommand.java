@@ -23,7 +23,8 @@ public final class FeedCommand implements Callable<Integer> {
     @Option(names = "--transport", description = "tcp or udp. Default: ${DEFAULT-VALUE}")
     String transport = "tcp";
 
-    @Option(names = "--scene", description = "parcel-line, dock-door or orchard-pan. Default: ${DEFAULT-VALUE}")
+    @Option(names = "--scene", description = "parcel-line, dock-door, orchard-pan, floodlit-hoist, stockroom-pan or rink-shot, each also as NAME_dark "
+            + "(8x less light); the scene sets the sensor's conditions. Default: ${DEFAULT-VALUE}")
     String scene = "parcel-line";
 
     @Option(names = "--sensor-id", description = "Sensor id. Default: the scene's name.")
@@ -44,8 +45,8 @@ public final class FeedCommand implements Callable<Integer> {
     @Option(names = "--packet-us", description = "Sensor time per packet in microseconds, 100 .. 100000. Default: ${DEFAULT-VALUE}")
     long packetUs = 1000;
 
-    @Option(names = "--noise", description = "Background activity per pixel in Hz, 0 .. 100. Default: ${DEFAULT-VALUE}")
-    double noiseHz = 1;
+    @Option(names = "--noise", description = "Background activity per pixel in Hz, 0 .. 100. Default: the scene's (1 Hz; stockroom-pan 5 Hz, _dark variants x3).")
+    Double noiseHz;
 
     @Option(names = "--frames", description = "Also send the sensor's own frames at 20 Hz (TCP only). Default: ${DEFAULT-VALUE}")
     boolean frames = true;
@@ -69,7 +70,9 @@ public final class FeedCommand implements Callable<Integer> {
         Checks.range("--seconds", seconds, 0, 86400);
         Checks.range("--speed", speed, 0, 100);
         Checks.range("--packet-us", packetUs, 100, 100_000);
-        Checks.range("--noise", noiseHz, 0, 100);
+        if (noiseHz != null) {
+            Checks.range("--noise", noiseHz, 0, 100);
+        }
         if (!transport.equals("tcp") && !transport.equals("udp")) {
             throw new IllegalArgumentException("--transport=" + transport + ": expected tcp or udp");
         }

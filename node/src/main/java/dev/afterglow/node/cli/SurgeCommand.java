@@ -56,7 +56,8 @@ public final class SurgeCommand implements Callable<Integer> {
     @Option(names = "--height", description = "Sensor height, 24 .. 720. Default: ${DEFAULT-VALUE}")
     int height = 480;
 
-    @Option(names = "--scene", description = "parcel-line, dock-door or orchard-pan. Default: ${DEFAULT-VALUE}")
+    @Option(names = "--scene", description = "parcel-line, dock-door, orchard-pan, floodlit-hoist, stockroom-pan or rink-shot, each also as NAME_dark "
+            + "(8x less light); the scene sets the sensor's conditions. Default: ${DEFAULT-VALUE}")
     String scene = "parcel-line";
 
     @Option(names = "--packet-us", description = "Sensor time per packet in microseconds, 100 .. 100000. Default: ${DEFAULT-VALUE}")

@@ -19,10 +19,22 @@ import java.io.IOException;
 public final class SyntheticFeed {
     private final SyntheticSensor sensor;
 
-    /** A feed of {@code scene} at the given size with the default sensor model. */
-    public SyntheticFeed(SceneKind scene, int width, int height, double noiseHz, long seed) {
-        SensorConfig config = SensorConfig.builder(width, height).backgroundRateHz(noiseHz).seed(seed).build();
-        this.sensor = new SyntheticSensor(scene.create(width, height, seed), config);
+    /**
+     * A feed of {@code scene} at the given size under the scene's sensor conditions
+     * ({@link SceneKind#sensor}), with the background activity {@code noiseHz} if given (null: the
+     * scene's).
+     */
+    public SyntheticFeed(SceneKind scene, int width, int height, Double noiseHz, long seed) {
+        this(scene, withNoise(scene.sensor(width, height), noiseHz).seed(seed).build());
+    }
+
+    /** A feed of {@code scene} seen by a sensor with {@code config} (its size and seed build the scene). */
+    public SyntheticFeed(SceneKind scene, SensorConfig config) {
+        this.sensor = new SyntheticSensor(scene.create(config.width(), config.height(), config.seed()), config);
+    }
+
+    private static SensorConfig.Builder withNoise(SensorConfig.Builder b, Double noiseHz) {
+        return noiseHz == null ? b : b.backgroundRateHz(noiseHz);
     }
 
     /** The simulated sensor (for its counts and ground truth). */

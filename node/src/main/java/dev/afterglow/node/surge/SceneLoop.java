@@ -2,7 +2,6 @@ package dev.afterglow.node.surge;
 
 import dev.afterglow.filters.EventBatch;
 import dev.afterglow.filters.synth.SceneKind;
-import dev.afterglow.filters.synth.SensorConfig;
 import dev.afterglow.filters.synth.SyntheticSensor;
 
 /**
@@ -29,10 +28,10 @@ public final class SceneLoop {
         this.timesUs = timesUs;
     }
 
-    /** Runs the synthetic sensor over {@link #LOOP_US} of {@code kind} at the given size. */
+    /** Runs the synthetic sensor, under the scene's conditions, over {@link #LOOP_US} of {@code kind} at the given size. */
     public static SceneLoop generate(SceneKind kind, int width, int height, long seed) {
         SyntheticSensor sensor = new SyntheticSensor(kind.create(width, height, seed),
-                SensorConfig.builder(width, height).seed(seed).build());
+                kind.sensor(width, height).seed(seed).build());
         EventBatch batch = new EventBatch(1 << 18);
         long[] words = new long[1 << 16];
         int[] times = new int[1 << 16];

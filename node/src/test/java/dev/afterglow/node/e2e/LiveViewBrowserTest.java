@@ -70,7 +70,7 @@ class LiveViewBrowserTest {
         try (AfterglowNode afterglow = AfterglowNode.start(config)) {
             Thread sensor = new Thread(() -> {
                 try (SensorClient c = SensorClient.connect("127.0.0.1", afterglow.ingestTcpPort(), "parcel-line", W, H, true)) {
-                    new SyntheticFeed(SceneKind.PARCEL_LINE, W, H, 1, 7).run(SyntheticFeed.tcp(c), "parcel-line", 0, 1000, 1, true);
+                    new SyntheticFeed(SceneKind.PARCEL_LINE, W, H, 1.0, 7).run(SyntheticFeed.tcp(c), "parcel-line", 0, 1000, 1, true);
                 } catch (IOException | InterruptedException e) {
                     // stopped at the end of the test
                 }

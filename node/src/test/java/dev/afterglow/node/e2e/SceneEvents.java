@@ -2,7 +2,6 @@ package dev.afterglow.node.e2e;
 
 import dev.afterglow.filters.EventBatch;
 import dev.afterglow.filters.synth.SceneKind;
-import dev.afterglow.filters.synth.SensorConfig;
 import dev.afterglow.filters.synth.SyntheticSensor;
 import java.util.ArrayList;
 import java.util.List;
@@ -15,7 +14,7 @@ final class SceneEvents {
     /** Packets of {@code packetUs} each, covering [0, durationUs) of sensor time (empty ones left out). */
     static List<EventBatch> packets(int width, int height, long durationUs, long packetUs, long seed) {
         SyntheticSensor sensor = new SyntheticSensor(SceneKind.PARCEL_LINE.create(width, height, seed),
-                SensorConfig.builder(width, height).backgroundRateHz(2).seed(seed).build());
+                SceneKind.PARCEL_LINE.sensor(width, height).backgroundRateHz(2).seed(seed).build());
         List<EventBatch> out = new ArrayList<>();
         EventBatch step = new EventBatch(1 << 16);
         for (long t = 0; t < durationUs; t += packetUs) {

@@ -4,7 +4,6 @@ import com.google.protobuf.ByteString;
 import dev.afterglow.filters.EventBatch;
 import dev.afterglow.filters.codec.EventPacketCodec;
 import dev.afterglow.filters.synth.SceneKind;
-import dev.afterglow.filters.synth.SensorConfig;
 import dev.afterglow.filters.synth.SyntheticSensor;
 import dev.afterglow.proto.v1.Envelope;
 import dev.afterglow.proto.v1.EventPacket;
@@ -136,7 +135,7 @@ final class LegitSensor implements AutoCloseable {
 
     private void run() {
         SyntheticSensor scene = new SyntheticSensor(SceneKind.PARCEL_LINE.create(WIDTH, HEIGHT, 7),
-                SensorConfig.builder(WIDTH, HEIGHT).seed(7).build());
+                SceneKind.PARCEL_LINE.sensor(WIDTH, HEIGHT).seed(7).build());
         EventBatch batch = new EventBatch(1 << 16);
         long seq = 0;
         try {
