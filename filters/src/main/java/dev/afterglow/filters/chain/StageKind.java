@@ -3,6 +3,7 @@ package dev.afterglow.filters.chain;
 import dev.afterglow.filters.EventStage;
 import dev.afterglow.filters.denoise.BackgroundActivityFilter;
 import dev.afterglow.filters.denoise.HotPixelFilter;
+import dev.afterglow.filters.denoise.PatchSupportFilter;
 import dev.afterglow.filters.denoise.RefractoryFilter;
 import dev.afterglow.filters.recon.ComplementaryFilter;
 import dev.afterglow.filters.recon.FrameNoiseModel;
@@ -51,6 +52,26 @@ public enum StageKind {
         @Override
         EventStage build(StageSpec s, int w, int h) {
             return new BackgroundActivityFilter(w, h, (int) s.get("window"), (int) s.get("support"));
+        }
+    },
+    /** {@link PatchSupportFilter}: k of the other pixels of a (2r+1)x(2r+1) patch within dT. */
+    PATCH_SUPPORT("patch-support", false, List.of(
+            new Param("window", Unit.TIME, 8_000, 1, 1_000_000, "window dT"),
+            new Param("support", Unit.INTEGER, 3, 1, 48, "other pixels of the patch that must have fired within dT"),
+            new Param("radius", Unit.INTEGER, 2, 1, PatchSupportFilter.MAX_RADIUS, "patch radius r: (2r+1)x(2r+1) pixels"))) {
+        @Override
+        EventStage build(StageSpec s, int w, int h) {
+            return new PatchSupportFilter(w, h, (int) s.get("window"), (int) s.get("support"), (int) s.get("radius"));
+        }
+
+        @Override
+        void checkTogether(StageSpec s) {
+            int r = (int) s.get("radius");
+            int others = (2 * r + 1) * (2 * r + 1) - 1;
+            if (s.get("support") > others) {
+                throw new ChainSpecException("patch-support.support=" + (int) s.get("support") + " > " + others
+                        + ", the other pixels of a " + (2 * r + 1) + "x" + (2 * r + 1) + " patch (patch-support.radius=" + r + ")");
+            }
         }
     },
     /** {@link DirectIntegration}. */

@@ -1,0 +1,174 @@
+package dev.afterglow.filters.denoise;
+
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertThrows;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import dev.afterglow.filters.EventBatch;
+import dev.afterglow.filters.EventLog;
+import dev.afterglow.filters.RandomEventStream;
+import org.junit.jupiter.api.Test;
+import org.junit.jupiter.params.ParameterizedTest;
+import org.junit.jupiter.params.provider.CsvSource;
+
+/**
+ * Checks {@link PatchSupportFilter} against a naive reference written from the definition: pass an
+ * event if at least k of the other pixels of the (2r+1)x(2r+1) patch around it (those inside the
+ * sensor) had an event within dT before it; every event stamps its pixel. With r = 1 this is the
+ * k-of-8 correlation filter of Guo and Delbruck (TPAMI 2022), so the stage must also agree with
+ * {@link BackgroundActivityFilter} there.
+ */
+class PatchSupportFilterTest {
+
+    /** Naive filter: long stamps, explicit bounds checks, no padding, the whole patch scanned. */
+    static final class NaivePatchSupport {
+        private final int width;
+        private final int height;
+        private final long windowUs;
+        private final int support;
+        private final int radius;
+        private final long[] latest;
+        private final boolean[] fired;
+
+        NaivePatchSupport(int width, int height, long windowUs, int support, int radius) {
+            this.width = width;
+            this.height = height;
+            this.windowUs = windowUs;
+            this.support = support;
+            this.radius = radius;
+            this.latest = new long[width * height];
+            this.fired = new boolean[width * height];
+        }
+
+        boolean pass(int x, int y, long t) {
+            int found = 0;
+            for (int dy = -radius; dy <= radius; dy++) {
+                for (int dx = -radius; dx <= radius; dx++) {
+                    int nx = x + dx;
+                    int ny = y + dy;
+                    if ((dx == 0 && dy == 0) || nx < 0 || ny < 0 || nx >= width || ny >= height) {
+                        continue;
+                    }
+                    int n = ny * width + nx;
+                    if (fired[n] && t - latest[n] <= windowUs) {
+                        found++;
+                    }
+                }
+            }
+            fired[y * width + x] = true;
+            latest[y * width + x] = t;
+            return found >= support;
+        }
+    }
+
+    static EventLog[] runBoth(RandomEventStream s, int windowUs, int support, int radius) {
+        return StageAgainstReference.run(s,
+                new PatchSupportFilter(s.width, s.height, windowUs, support, radius),
+                new NaivePatchSupport(s.width, s.height, windowUs, support, radius)::pass);
+    }
+
+    @ParameterizedTest(name = "{0}x{1} seed {2} window {3}us support {4} radius {5}")
+    @CsvSource({
+        "32, 24, 1, 2000, 1, 2",
+        "32, 24, 2, 7000, 3, 2",
+        "32, 24, 3, 1000000, 3, 2",
+        "32, 24, 4, 20000, 6, 2",
+        "32, 24, 5, 5000, 2, 1",
+        "32, 24, 6, 50000, 8, 3",
+        "40, 17, 7, 7000, 3, 2",
+        "40, 17, 8, 3000, 4, 3",
+        "17, 40, 9, 10000, 5, 2",
+        "17, 40, 10, 100, 1, 2",
+        "5, 3, 11, 50000, 3, 2",
+        "3, 5, 12, 50000, 2, 3",
+    })
+    void shouldPassExactlyTheEventsTheNaiveFilterPasses(int w, int h, long seed, int windowUs, int support, int radius) {
+        RandomEventStream s = RandomEventStream.builder(w, h, seed).disorder(0.02, 30).build();
+        EventLog[] r = runBoth(s, windowUs, support, radius);
+        EventLog.assertSameEvents(r[0], r[1], "support " + support + " radius " + radius + " window " + windowUs + "us");
+        assertTrue(r[0].size() > 0 && r[0].size() < s.size, "passed " + r[0].size() + " of " + s.size);
+    }
+
+    @ParameterizedTest(name = "seed {0} window {1}us support {2}")
+    @CsvSource({"21, 2000, 1", "22, 5000, 2", "23, 20000, 3", "24, 100000, 5"})
+    void shouldAgreeWithTheCorrelationFilterOnA3x3Patch(long seed, int windowUs, int support) {
+        RandomEventStream s = RandomEventStream.builder(30, 20, seed).disorder(0.02, 30).build();
+        EventLog got = new EventLog();
+        EventLog want = new EventLog();
+        PatchSupportFilter patch = new PatchSupportFilter(30, 20, windowUs, support, 1);
+        BackgroundActivityFilter correlation = new BackgroundActivityFilter(30, 20, windowUs, support);
+        EventBatch a = s.newBatch();
+        EventBatch b = s.newBatch();
+        for (int k = 0; k < s.batches; k++) {
+            s.fill(k, a);
+            s.fill(k, b);
+            patch.process(a);
+            correlation.process(b);
+            got.addAll(a);
+            want.addAll(b);
+        }
+        EventLog.assertSameEvents(want, got, "radius 1 vs correlation, support " + support);
+        assertTrue(want.size() > 0 && want.size() < s.size, "passed " + want.size() + " of " + s.size);
+    }
+
+    @Test
+    void shouldCountOnlyPatchPixelsInsideTheSensorAtCornersAndEdges() {
+        // With radius 2 a corner pixel has 8 patch pixels inside the sensor and a pixel on an edge
+        // (2 from the corners) 14; with all of them fresh, a corner event passes k <= 8, an edge event k <= 14.
+        int w = 9;
+        int h = 6;
+        for (int k = 1; k <= 24; k++) {
+            PatchSupportFilter f = new PatchSupportFilter(w, h, 1000, k, 2);
+            EventBatch b = new EventBatch(256);
+            b.reset(10_000);
+            for (int y = 0; y < h; y++) {
+                for (int x = 0; x < w; x++) {
+                    if (!((x == 0 && y == 0) || (x == 4 && y == 0))) {
+                        b.add(x, y, 10_000, 1);
+                    }
+                }
+            }
+            b.add(0, 0, 10_500, 1);
+            b.add(4, 0, 10_500, -1);
+            f.process(b);
+            boolean corner = false;
+            boolean edge = false;
+            for (int i = 0; i < b.size; i++) {
+                if (b.timeUs(i) == 10_500) {
+                    corner |= b.x[i] == 0;
+                    edge |= b.x[i] == 4;
+                }
+            }
+            assertEquals(k <= 8, corner, "corner, k=" + k);
+            assertEquals(k <= 14, edge, "edge, k=" + k);
+        }
+    }
+
+    @Test
+    void shouldMatchTheNaiveFilterAcrossLongGapsAndLateTimeBases() {
+        RandomEventStream s = RandomEventStream.builder(12, 9, 13)
+                .startUs((1L << 31) - 1_000_000_000L).activeUs(20_000_000).noiseHz(3).hot(2, 5, 40)
+                .burstHz(20).edgeHz(0.5).gaps(6, 600_000_000L, 1_500_000_000L).batches(5000, 60_000_000L).build();
+        for (int[] c : new int[][] {{7_000, 3, 2}, {1_000_000, 1, 2}, {500_000, 10, 3}}) {
+            EventLog[] r = runBoth(s, c[0], c[1], c[2]);
+            EventLog.assertSameEvents(r[0], r[1], "support " + c[1] + " radius " + c[2] + " window " + c[0] + "us");
+            assertTrue(r[0].size() > 0 && r[0].size() < s.size, "passed " + r[0].size() + " of " + s.size);
+        }
+    }
+
+    @Test
+    void shouldRefuseParametersOutsideTheirLimitsNamingThem() {
+        assertMessage(() -> new PatchSupportFilter(8, 8, 0, 3, 2), "patch-support.window=0us");
+        assertMessage(() -> new PatchSupportFilter(8, 8, 1_000_001, 3, 2), "patch-support.window=1000001us");
+        assertMessage(() -> new PatchSupportFilter(8, 8, 1000, 3, 0), "patch-support.radius=0");
+        assertMessage(() -> new PatchSupportFilter(8, 8, 1000, 3, 4), "patch-support.radius=4");
+        assertMessage(() -> new PatchSupportFilter(8, 8, 1000, 0, 2), "patch-support.support=0");
+        assertMessage(() -> new PatchSupportFilter(8, 8, 1000, 9, 1), "patch-support.support=9 outside [1, 8]");
+        assertMessage(() -> new PatchSupportFilter(8, 8, 1000, 25, 2), "patch-support.support=25 outside [1, 24]");
+    }
+
+    private static void assertMessage(org.junit.jupiter.api.function.Executable build, String part) {
+        IllegalArgumentException e = assertThrows(IllegalArgumentException.class, build);
+        assertTrue(e.getMessage().contains(part), e.getMessage());
+    }
+}
