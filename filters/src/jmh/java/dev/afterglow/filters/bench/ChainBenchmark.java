@@ -2,6 +2,9 @@ package dev.afterglow.filters.bench;
 
 import dev.afterglow.filters.EventBatch;
 import dev.afterglow.filters.chain.Chain;
+import dev.afterglow.filters.chain.DefaultChains;
+import dev.afterglow.filters.recon.FrameFusion;
+import java.nio.ByteBuffer;
 import dev.afterglow.filters.codec.DecodeResult;
 import dev.afterglow.filters.codec.EventPacketCodec;
 import dev.afterglow.filters.recon.Reconstruction;
@@ -13,13 +16,17 @@ import org.openjdk.jmh.annotations.Level;
 import org.openjdk.jmh.annotations.Mode;
 import org.openjdk.jmh.annotations.OperationsPerInvocation;
 import org.openjdk.jmh.annotations.OutputTimeUnit;
+import org.openjdk.jmh.annotations.Param;
 import org.openjdk.jmh.annotations.Scope;
 import org.openjdk.jmh.annotations.Setup;
 import org.openjdk.jmh.annotations.State;
 
 /**
- * Events per second through the default chain {@value #CHAIN}, without readout and with a full
- * 640x480 float readout every {@value SceneEvents#READOUT_INTERVAL_US} us of sensor time.
+ * Events per second through a chain (the default chains for events-only sensors and for sensors
+ * with frames, and the earlier fixed default), without readout and with a full 640x480 float
+ * readout every {@value SceneEvents#READOUT_INTERVAL_US} us of sensor time. A fusion chain also
+ * gets a sensor frame (a ramp, 10 ms exposure) every {@value #FRAME_INTERVAL_US} us of sensor time
+ * in {@link #chainWithReadout()}, as a 20 Hz sensor sends them.
  *
  * <p>As in {@link StageBenchmark}, each invocation copies a pristine batch into a work batch first;
  * <b>the copy is included in the score</b> ({@link DecodeBenchmark#copyBaseline()} measures it alone).
@@ -31,12 +38,20 @@ import org.openjdk.jmh.annotations.State;
 @BenchmarkMode(Mode.Throughput)
 @OutputTimeUnit(TimeUnit.SECONDS)
 public class ChainBenchmark {
-    /** The chain measured: the project's default chain with its default parameters written out. */
+    /** The chain measured by default before the automatic defaults. */
     public static final String CHAIN =
             "refractory(period=1ms) | background-activity(window=2ms) | high-pass(cutoff=5rad/s, contrast=0.2)";
+    /** Sensor time between two sensor frames for a fusion chain (20 Hz). */
+    public static final long FRAME_INTERVAL_US = 50_000;
+
+    /** Which chain: {@code events} and {@code frames} are {@link DefaultChains}' two; {@code fixed} is {@link #CHAIN}. */
+    @Param({"events", "frames", "fixed"})
+    public String chainName;
 
     private Chain chain;
     private Reconstruction reconstruction;
+    private FrameFusion fusion;
+    private ByteBuffer sensorFrame;
     private float[] frame;
     private EventBatch work;
     private Replay replay;
@@ -49,8 +64,15 @@ public class ChainBenchmark {
     @Setup(Level.Trial)
     public void setUp(SceneEvents events) {
         this.events = events;
-        chain = Chain.build(CHAIN, SceneEvents.WIDTH, SceneEvents.HEIGHT);
+        String text = switch (chainName) {
+            case "events" -> DefaultChains.EVENTS_ONLY;
+            case "frames" -> DefaultChains.WITH_FRAMES;
+            default -> CHAIN;
+        };
+        chain = Chain.build(text, SceneEvents.WIDTH, SceneEvents.HEIGHT);
         reconstruction = chain.reconstruction();
+        fusion = reconstruction instanceof FrameFusion f ? f : null;
+        sensorFrame = SyntheticScene.rampFrame(SceneEvents.WIDTH, SceneEvents.HEIGHT);
         frame = new float[SceneEvents.WIDTH * SceneEvents.HEIGHT];
         work = new EventBatch(SceneEvents.BATCH_EVENTS);
         replay = new Replay(events);
@@ -98,7 +120,11 @@ public class ChainBenchmark {
                 chain.process(work);
                 from = to;
             }
-            reconstruction.readLog(times[k] + shift, frame);
+            long t = times[k] + shift;
+            if (fusion != null && t % FRAME_INTERVAL_US == 0) {
+                fusion.applyFrame(t - 10_000, t, sensorFrame, 8);
+            }
+            reconstruction.readLog(t, frame);
             readouts++;
         }
         if (from < SceneEvents.BATCH_EVENTS) {
