@@ -56,6 +56,12 @@ public final class FrameNoiseModel {
         return saturatedFraction;
     }
 
+    /** The lowest pixel value at {@code bits} per pixel that counts as saturated (at least 1). */
+    public int saturatedAt(int bits) {
+        int max = (1 << bits) - 1;
+        return Math.max(1, (int) Math.ceil(saturatedFraction * max));
+    }
+
     /** Log intensity of pixel value {@code v} at {@code bits} per pixel. */
     public double log(int v, int bits) {
         prepare(bits);
@@ -93,7 +99,7 @@ public final class FrameNoiseModel {
         double read = readNoise8 * scale;
         double[] logs = new double[max + 1];
         double[] vars = new double[max + 1];
-        int saturatedAt = (int) Math.ceil(saturatedFraction * max);
+        int saturatedAt = saturatedAt(bits);
         for (int v = 0; v <= max; v++) {
             double level = v + 0.5;
             logs[v] = Math.log(level / (max + 1));

@@ -17,8 +17,12 @@ import java.nio.ByteOrder;
  * <li>An event of polarity p adds {@code p·C} to {@code x} and its own uncertainty {@code R_e} to
  *     {@code P}: threshold mismatch and the chance that the event is noise.</li>
  * <li>A frame is a measurement {@code z} with variance {@code R} from {@link FrameNoiseModel}
- *     (shot, read and quantisation noise; saturated pixels weigh nothing), fused with the gain
- *     {@code K = P/(P + R)}: {@code x += K·(z - x)}, {@code P = (1 - K)·P}.</li>
+ *     (shot, read and quantisation noise), fused with the gain {@code K = P/(P + R)}:
+ *     {@code x += K·(z - x)}, {@code P = (1 - K)·P}. A saturated pixel is a censored measurement:
+ *     it says only that the pixel is at least as bright as saturation, so an estimate at or above
+ *     that level is left alone and one below it is pulled up towards it (with the variance of the
+ *     level just below saturation). Drift of events under a clipped frame is bounded from below
+ *     that way.</li>
  * </ul>
  * Where frames are good and events few, {@code P} stays small and the estimate holds the frame;
  * where frames are saturated or dark and noisy, R is large and events carry the pixel. With no
@@ -271,16 +275,33 @@ public final class KalmanFusion implements FrameFusion {
         float[] start = atExposureStart;
         float[] share = exposureShare;
         double q = processNoisePerUs;
+        int saturatedAt = frameNoise.saturatedAt(bitDepth);
+        double floorLog = zs[saturatedAt - 1];
+        double floorVariance = rs[saturatedAt - 1];
         for (int i = 0; i < n; i++) {
             int v = bytesPer == 1 ? in.get(at + i) & 0xFF : Math.min(max, in.getShort(at + 2 * i) & 0xFFFF);
             long before = last[i];
             if (before != Long.MIN_VALUE && timeUs > before) {
                 p[i] += q * (timeUs - before);
             }
-            double prior = p[i];
-            double gain = prior / (prior + rs[v]);
             double seen = againstExposure ? start[i] + share[i] : x[i];
-            x[i] += gain * (zs[v] - seen);
+            double z = zs[v];
+            double r = rs[v];
+            if (v >= saturatedAt) {
+                // Censored: the pixel is at least as bright as saturation, no more is known. An
+                // estimate already there is left alone; one below is pulled up to the floor.
+                if (seen >= floorLog) {
+                    if (before == Long.MIN_VALUE || timeUs > before) {
+                        last[i] = timeUs;
+                    }
+                    continue;
+                }
+                z = floorLog;
+                r = floorVariance;
+            }
+            double prior = p[i];
+            double gain = prior / (prior + r);
+            x[i] += gain * (z - seen);
             p[i] = (1 - gain) * prior;
             if (before == Long.MIN_VALUE || timeUs > before) {
                 last[i] = timeUs;
