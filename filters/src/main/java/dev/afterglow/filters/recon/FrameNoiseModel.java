@@ -23,6 +23,12 @@ public final class FrameNoiseModel {
     private int tableBits;
     private double[] logOf;
     private double[] varianceOf;
+    private double[] varianceAtLog;
+    private double logTableStart;
+    private double logTableScale;
+
+    /** Entries of the table of variance by expected log intensity. */
+    static final int LOG_TABLE_SIZE = 2048;
 
     /**
      * @param shotGain8 g, counts per photo-electron at 8 bits, [0, 100]
@@ -74,6 +80,30 @@ public final class FrameNoiseModel {
         return varianceOf[v];
     }
 
+    /**
+     * Variance (log units²) of a frame pixel whose expected log intensity is {@code logIntensity}:
+     * the noise of the count the estimate predicts, {@code (g·μ + r² + 1/12)/(μ + 1/2)²} with
+     * {@code μ = e^x·(M + 1) - 1/2}, from a table over x (no {@code exp} per call). Weighing a
+     * measurement by the noise the estimate predicts, not by the noise its own noisy value
+     * implies, keeps dark pixels from favouring their brighter noise draws (common practice in
+     * low-light estimation).
+     */
+    public double varianceAtLog(double logIntensity, int bits) {
+        prepare(bits);
+        return varianceAtLog[logTableIndex(logIntensity)];
+    }
+
+    int logTableIndex(double logIntensity) {
+        double at = (logIntensity - logTableStart) * logTableScale;
+        return at <= 0 ? 0 : at >= LOG_TABLE_SIZE - 1 ? LOG_TABLE_SIZE - 1 : (int) at;
+    }
+
+    /** The table behind {@link #varianceAtLog}; index with {@link #logTableIndex}. */
+    double[] variancesAtLog(int bits) {
+        prepare(bits);
+        return varianceAtLog;
+    }
+
     /** The log table for {@code bits} (index: pixel value). */
     double[] logs(int bits) {
         prepare(bits);
@@ -107,6 +137,19 @@ public final class FrameNoiseModel {
         }
         logOf = logs;
         varianceOf = vars;
+        // By expected log intensity: from half a count (the darkest a value can say) to saturation.
+        double lo = logs[0];
+        double hi = logs[Math.max(0, saturatedAt - 1)];
+        double[] byLog = new double[LOG_TABLE_SIZE];
+        double step = (hi - lo) / (LOG_TABLE_SIZE - 1);
+        for (int k = 0; k < LOG_TABLE_SIZE; k++) {
+            double level = Math.exp(lo + (k + 0.5) * step) * (max + 1); // μ + 1/2
+            double mu = Math.max(0, level - 0.5);
+            byLog[k] = (gain * mu + read * read + 1.0 / 12) / (level * level);
+        }
+        varianceAtLog = byLog;
+        logTableStart = lo;
+        logTableScale = step > 0 ? 1 / step : 0;
         tableBits = bits;
     }
 }

@@ -277,6 +277,7 @@ public final class KalmanFusion implements FrameFusion {
         double q = processNoisePerUs;
         int saturatedAt = frameNoise.saturatedAt(bitDepth);
         double floorLog = zs[saturatedAt - 1];
+        double[] byLog = frameNoise.variancesAtLog(bitDepth);
         double floorVariance = rs[saturatedAt - 1];
         for (int i = 0; i < n; i++) {
             int v = bytesPer == 1 ? in.get(at + i) & 0xFF : Math.min(max, in.getShort(at + 2 * i) & 0xFFFF);
@@ -286,7 +287,7 @@ public final class KalmanFusion implements FrameFusion {
             }
             double seen = againstExposure ? start[i] + share[i] : x[i];
             double z = zs[v];
-            double r = rs[v];
+            double r = p[i] >= UNKNOWN_VARIANCE ? rs[v] : byLog[frameNoise.logTableIndex(seen)];
             if (v >= saturatedAt) {
                 // Censored: the pixel is at least as bright as saturation, no more is known. An
                 // estimate already there is left alone; one below is pulled up to the floor.

@@ -34,7 +34,8 @@ class KalmanFusionTest {
         long periodUs = 50_000;
         int value = 60;
         FrameNoiseModel model = new FrameNoiseModel(0.5, 2, 0.98);
-        double r = model.variance(value, 8);
+        // Measurements are weighed by the noise at the level the estimate predicts; it settles on the frame's.
+        double r = model.varianceAtLog(model.log(value, 8), 8);
         KalmanFusion f = filter(1, 1, q, 0.3, 0.5, 2);
         for (int k = 0; k < 400; k++) {
             f.applyFrame(k * periodUs, frame(1, value), 8);
@@ -74,7 +75,7 @@ class KalmanFusionTest {
         double average = before + C * (8_000 + 5_000 + 2_000) / 10_000.0; // time-weighted share of each step
         double priorVariance = f.variance(0) + 0.3 * (110_000 - 108_000) * 1e-6;
         int z = 90;
-        double r = new FrameNoiseModel(0, 0, 0.98).variance(z, 8);
+        double r = new FrameNoiseModel(0, 0, 0.98).varianceAtLog(average, 8);
         double gain = priorVariance / (priorVariance + r);
         double zLog = Math.log((z + 0.5) / 256);
         f.applyFrame(100_000, 110_000, frame(1, z), 8);
@@ -212,7 +213,8 @@ class KalmanFusionTest {
                         p[i] += q * (fe - last[i]) * 1e-6;
                     }
                     double z = Math.log((v + 0.5) / 256);
-                    double r = (0.7 * v + 9 + 1.0 / 12) / ((v + 0.5) * (v + 0.5));
+                    double r = p[i] >= KalmanFusion.UNKNOWN_VARIANCE ? (0.7 * v + 9 + 1.0 / 12) / ((v + 0.5) * (v + 0.5))
+                            : model.varianceAtLog(seen[i], 8); // the noise at the level the estimate predicts
                     boolean skip = false;
                     if (v >= saturatedAt) { // censored: at least saturation
                         skip = seen[i] >= floor;
