@@ -101,8 +101,8 @@ public enum StageKind {
     /** {@link KalmanFusion}: per-pixel uncertainty-weighted fusion of events and the sensor's frames. */
     KALMAN_FUSION("kalman-fusion", true, List.of(
             new Param("contrast", Unit.NUMBER, 0.2, 0.01, 2, "contrast threshold C in log units"),
-            new Param("process-noise", Unit.NUMBER, 0.05, 1e-6, 1e4, "q: how fast the scene may drift, log units squared per second"),
-            new Param("event-noise", Unit.NUMBER, 0.3, 0, 10, "standard deviation of one event's step, as a fraction of C"),
+            new Param("process-noise", Unit.NUMBER, 0.03, 1e-6, 1e4, "q: how fast the scene may drift, log units squared per second"),
+            new Param("event-noise", Unit.NUMBER, 1, 0, 10, "standard deviation of one event's step, as a fraction of C"),
             new Param("shot-gain", Unit.NUMBER, 0.5, 0, 100, "frame shot noise: variance per count of signal, in 8-bit counts"),
             new Param("read-noise", Unit.NUMBER, 2, 0, 100, "frame read noise, standard deviation in 8-bit counts"),
             new Param("saturated", Unit.NUMBER, 0.98, 0.01, 1, "fraction of full scale at and above which a frame pixel carries no measurement"),

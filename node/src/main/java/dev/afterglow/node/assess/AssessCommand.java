@@ -52,8 +52,10 @@ public final class AssessCommand implements Callable<Integer> {
     int height = 480;
 
     @Option(names = "--chain", paramLabel = "CHAIN",
-            description = "A chain to assess (repeatable; see 'afterglow stages'). Default: direct-integration, high-pass "
-                    + "and complementary, each alone and after '" + QualityRun.STANDARD_DENOISE + "'.")
+            description = "A chain to assess (repeatable; see 'afterglow stages'). The flat image and, with frames, the held "
+                    + "sensor frame are always scored too. Default: the plain complementary filter with a fixed cut-off of 2π "
+                    + "rad/s (with frames), the high-pass filter after '" + QualityRun.STANDARD_DENOISE + "' and the node's "
+                    + "default chain for the sensor.")
     List<String> chains = new ArrayList<>();
 
     @Option(names = "--eval-rate", description = "Evaluations per second of sensor time, 0.5 .. 50 Hz. Default: ${DEFAULT-VALUE}")
@@ -244,8 +246,15 @@ public final class AssessCommand implements Callable<Integer> {
         if (chains.isEmpty()) {
             return QualityRun.benchmarkMethods(contrast, frames);
         }
+        // The baselines head every table, so each row shows what its method adds.
         List<QualityRun.Method> list = new ArrayList<>();
+        list.add(QualityRun.Method.flat());
         Map<String, Integer> used = new HashMap<>();
+        used.put(QualityRun.Method.FLAT, 1);
+        if (frames && chains.stream().noneMatch(c -> ChainSpec.parse(c).equals(ChainSpec.parse("hold-frame")))) {
+            list.add(new QualityRun.Method("hold-frame", ChainSpec.parse("hold-frame")));
+            used.put("hold-frame", 1);
+        }
         for (String text : chains) {
             ChainSpec spec = ChainSpec.parse(text);
             List<StageSpec> stages = spec.stages();

@@ -115,6 +115,12 @@ class AssessCommandTest {
         assertEquals(0, r.code(), r.err());
         assertTrue(r.out().contains("high-pass#2"), r.out());
         assertTrue(r.out().contains("high-pass+dn"), r.out());
+        assertTrue(r.out().lines().anyMatch(l -> l.startsWith("flat ")), "the baselines head every table\n" + r.out());
+        assertTrue(r.out().lines().anyMatch(l -> l.startsWith("hold-frame ")), r.out());
+        Result eventsOnly = run("assess", "--width", "48", "--height", "36", "--seconds", "0.6", "--warmup", "0.2",
+                "--snapshots", "0", "--frame-rate", "0", "--out", dir.toString(), "--chain", "high-pass");
+        assertTrue(eventsOnly.out().lines().anyMatch(l -> l.startsWith("flat ")), eventsOnly.out());
+        assertTrue(eventsOnly.out().lines().noneMatch(l -> l.startsWith("hold-frame ")), "no frames, no held frame\n" + eventsOnly.out());
         assertTrue(Files.exists(dir.resolve("parcel-line-metrics.csv")));
         assertTrue(Files.notExists(dir.resolve("parcel-line-contact.png")));
     }
