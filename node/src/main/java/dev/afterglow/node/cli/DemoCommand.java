@@ -82,7 +82,9 @@ public final class DemoCommand implements Callable<Integer> {
                     latency-budget-ms: 50
                 """.formatted(sensorId, width, height, chain.replace("\"", ""), rate), "demo");
         System.out.printf(Locale.ROOT, "afterglow demo: node on 127.0.0.1, sensor %s %dx%d, chain: %s%n",
-                sensorId, width, height, config.sensors.get(0).chainSpec());
+                sensorId, width, height, config.sensors.get(0).automaticChain()
+                        ? "auto, for a sensor with frames: " + config.sensors.get(0).withSendsFrames(true).chainSpec()
+                        : config.sensors.get(0).chainSpec());
         try (AfterglowNode node = AfterglowNode.start(config)) {
             System.out.printf(Locale.ROOT, "afterglow demo: live view at http://127.0.0.1:%d/live?sensor=%s%n",
                     node.httpPort(), sensorId);
