@@ -77,8 +77,10 @@ final class FrameNoiseEstimator {
                     double d = a - c;
                     int bin = Math.min(BINS - 1, (int) (level / binWidth));
                     double seen = count[bin] > 10 ? sumSquares[bin] / count[bin] : 0;
-                    double limit = Math.max(OUTLIER_FLOOR, OUTLIER_SIGMAS * Math.sqrt(2 * Math.max(variance8(level), seen)));
-                    if (Math.abs(d) <= limit) {
+                    // |d| within max(floor, k·sqrt(2σ²)), compared squared (no square root per pixel).
+                    double limit2 = Math.max(OUTLIER_FLOOR * OUTLIER_FLOOR,
+                            OUTLIER_SIGMAS * OUTLIER_SIGMAS * 2 * Math.max(variance8(level), seen));
+                    if (d * d <= limit2) {
                         count[bin]++;
                         sumSquares[bin] += 0.5 * d * d;
                         sumLevel[bin] += level;
