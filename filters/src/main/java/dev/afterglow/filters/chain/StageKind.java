@@ -56,7 +56,7 @@ public enum StageKind {
     },
     /** {@link PatchSupportFilter}: k of the other pixels of a (2r+1)x(2r+1) patch within dT. */
     PATCH_SUPPORT("patch-support", false, List.of(
-            new Param("window", Unit.TIME, 8_000, 1, 1_000_000, "window dT"),
+            new Param("window", Unit.TIME, 6_000, 1, 1_000_000, "window dT"),
             new Param("support", Unit.INTEGER, 3, 1, 48, "other pixels of the patch that must have fired within dT"),
             new Param("radius", Unit.INTEGER, 2, 1, PatchSupportFilter.MAX_RADIUS, "patch radius r: (2r+1)x(2r+1) pixels"))) {
         @Override
