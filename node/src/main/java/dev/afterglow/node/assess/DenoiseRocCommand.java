@@ -39,9 +39,9 @@ public final class DenoiseRocCommand implements Callable<Integer> {
     List<String> scenes = new ArrayList<>();
 
     @Option(names = "--noise", paramLabel = "HZ", split = ",",
-            description = "Background activity per pixel, 0.1 .. 100 Hz (repeatable or comma-separated). "
-                    + "Default: the scene's own rate, 1 and 5 Hz")
-    List<Double> noise = new ArrayList<>();
+            description = "Background activity per pixel: 0.1 .. 100 Hz, or own for the scene's own rate "
+                    + "(repeatable or comma-separated). Default: own,1,5")
+    List<String> noise = new ArrayList<>(List.of("own", "1", "5"));
 
     @Option(names = "--seeds", paramLabel = "SET", description = "Seed set: tuning or validation. Default: ${DEFAULT-VALUE}")
     String seeds = "validation";
@@ -149,13 +149,11 @@ public final class DenoiseRocCommand implements Callable<Integer> {
         return BenchmarkSeeds.named(seeds);
     }
 
-    /** The rates to run for {@code kind}: those given, or the scene's own with 1 and 5 Hz. */
+    /** The rates to run for {@code kind}, each once, in increasing order. */
     private TreeSet<Double> rates(SceneKind kind) {
-        TreeSet<Double> set = new TreeSet<>(noise);
-        if (noise.isEmpty()) {
-            set.add(kind.sensor(width, height).backgroundRateHz());
-            set.add(1.0);
-            set.add(5.0);
+        TreeSet<Double> set = new TreeSet<>();
+        for (String n : noise) {
+            set.add(n.equals("own") ? kind.sensor(width, height).backgroundRateHz() : Double.parseDouble(n));
         }
         return set;
     }
@@ -164,8 +162,17 @@ public final class DenoiseRocCommand implements Callable<Integer> {
         check(seconds >= 0.2 && seconds <= 60, "--seconds=" + seconds + " outside [0.2, 60]");
         check(width >= 32 && width <= 1280, "--width=" + width + " outside [32, 1280]");
         check(height >= 24 && height <= 960, "--height=" + height + " outside [24, 960]");
-        for (double hz : noise) {
-            check(hz >= 0.1 && hz <= 100, "--noise=" + hz + " outside [0.1, 100]");
+        for (String n : noise) {
+            if (n.equals("own")) {
+                continue;
+            }
+            double hz;
+            try {
+                hz = Double.parseDouble(n);
+            } catch (NumberFormatException e) {
+                throw new IllegalArgumentException("--noise=" + n + ": expected own or a rate in Hz");
+            }
+            check(hz >= 0.1 && hz <= 100, "--noise=" + n + " outside [0.1, 100]");
         }
         check(!Files.exists(out) || Files.isDirectory(out), "--out=" + out + " exists and is not a folder");
     }
