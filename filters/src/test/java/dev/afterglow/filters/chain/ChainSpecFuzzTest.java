@@ -108,7 +108,8 @@ class ChainSpecFuzzTest {
     enum Verdict { PARSES, TOO_CLOSE_TO_CALL, REFUSED }
 
     /**
-     * The verdict of the documented rules (order, limits, whole numbers, complementary's pairs).
+     * The verdict of the documented rules (order, limits, whole numbers, complementary's pairs,
+     * patch-support's support within its patch).
      * A value within a relative 1e-9 of a limit is too close to call: the oracle converts units
      * with its own arithmetic, which may round the last bit differently.
      */
@@ -128,6 +129,10 @@ class ChainSpecFuzzTest {
                 }
                 result = worst(result, atMost(p.min(), x));
                 result = worst(result, atMost(x, p.max()));
+            }
+            if (w.kind() == StageKind.PATCH_SUPPORT) {
+                double side = 2 * v.get("radius") + 1;
+                result = worst(result, atMost(v.get("support"), side * side - 1));
             }
             if (w.kind() == StageKind.COMPLEMENTARY) {
                 result = worst(result, atMost(v.get("low-cutoff"), v.get("cutoff")));
