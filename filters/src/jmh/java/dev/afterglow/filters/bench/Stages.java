@@ -24,7 +24,7 @@ final class Stages {
             case "correlation":
                 return "correlation(window=2ms, support=2)";
             case "patch-support":
-                return "patch-support(window=6ms, support=3, radius=2)";
+                return "patch-support(window=10ms, support=6, radius=2)";
             case "direct-integration":
                 return "direct-integration(contrast=0.2)";
             case "high-pass":

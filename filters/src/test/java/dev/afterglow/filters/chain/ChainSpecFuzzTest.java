@@ -131,8 +131,16 @@ class ChainSpecFuzzTest {
                 result = worst(result, atMost(x, p.max()));
             }
             if (w.kind() == StageKind.PATCH_SUPPORT) {
-                double side = 2 * v.get("radius") + 1;
-                result = worst(result, atMost(v.get("support"), side * side - 1));
+                // The patch's whole weight: 8d pixels on ring d, each weighing radius + 1 - d. A radius
+                // outside its limits is refused by them already (and must not drive this loop).
+                double r = v.get("radius");
+                if (r >= 1 && r <= 3 && r == Math.rint(r)) {
+                    double whole = 0;
+                    for (int d = 1; d <= r; d++) {
+                        whole += 8 * d * (r + 1 - d);
+                    }
+                    result = worst(result, atMost(v.get("support"), whole));
+                }
             }
             if (w.kind() == StageKind.COMPLEMENTARY) {
                 result = worst(result, atMost(v.get("low-cutoff"), v.get("cutoff")));

@@ -51,6 +51,7 @@ class DenoiseRocSceneTest {
     @EnumSource(SceneKind.class)
     void patchSupportShouldHaveALargerAreaThanBackgroundActivity(SceneKind kind) {
         List<DenoiseRoc.FamilyResult> r = run(kind);
+        System.out.println(describe(kind)); // the figures, for the test report
         assertTrue(r.get(0).points().get(0).backgroundIn() > 1000, "background events " + describe(kind));
         assertTrue(r.get(1).area() > r.get(0).area(), describe(kind));
     }
