@@ -22,8 +22,8 @@ import dev.afterglow.filters.StageCounters;
  * r = 1 every weight is 1 and the filter is the k-of-8 correlation filter.
  *
  * <p>Every event (passed or not) stamps its pixel. Each pixel counts once, by its latest event,
- * whatever the polarity (measured on our scenes: requiring the same polarity lost as much signal
- * as noise). State: a timestamp map padded by r pixels on every side, so the patch is read
+ * whatever the polarity (measured on our scenes: requiring the same polarity lowered the area
+ * under the ROC curve). State: a timestamp map padded by r pixels on every side, so the patch is read
  * without bounds checks; pixels outside the sensor never fire. Threading: single owner thread.
  */
 public final class PatchSupportFilter implements EventStage {
