@@ -7,7 +7,7 @@ import java.util.SplittableRandom;
  * stockroom (five shelf levels of boxes, tins and bottles with printed labels and bar codes, steel
  * uprights, a dark back wall), lit to only 0.01 to 0.15 of the frames' full scale, seen by a camera
  * that pans left by 8% of the image width over 4 s with a smooth start and stop, holds 2 s, pans
- * back over 4 s and holds 2 s (a 12 s cycle; at most 20 px/s at 640x480, below
+ * back over 4 s and holds 2 s (a 12 s cycle; at most about 20 px/s at 640x480, below
  * {@code orchard-pan}'s 34 px/s), with a slight vertical drift. The scene's sensor fires
  * background activity at 5 Hz per pixel: in the holds, and for pixels the slow pan barely
  * changes, noise events outnumber signal, and a filter that waits a few milliseconds for a

@@ -118,6 +118,24 @@ class AssessCommandTest {
     }
 
     @Test
+    void shouldUseTheScenesSensorConditionsUnlessAnOptionChangesThem(@TempDir Path dir) throws Exception {
+        String[] args = {"assess", "--scene", "stockroom-pan_dark", "--width", "48", "--height", "36", "--seconds", "0.6",
+            "--warmup", "0.2", "--snapshots", "0", "--out", dir.toString()};
+        Result own = run(args);
+        assertEquals(0, own.code(), own.err());
+        // stockroom-pan: 5 Hz/pixel; its _dark variant x3 with the full scale x8 (SceneKind).
+        assertTrue(own.out().contains("background activity 15 Hz/pixel"), own.out());
+        assertTrue(own.out().contains("full scale 8,"), own.out());
+        Result given = run(concat(args, "--noise", "2", "--hot-pixels", "0"));
+        assertEquals(0, given.code(), given.err());
+        assertTrue(given.out().contains("background activity 2 Hz/pixel, 0 hot pixels"), given.out());
+        assertTrue(given.out().contains("full scale 8,"), given.out());
+        Result rink = run("assess", "--scene", "rink-shot", "--width", "48", "--height", "36", "--seconds", "0.6",
+                "--warmup", "0.2", "--snapshots", "0", "--out", dir.toString());
+        assertTrue(rink.out().contains("refractory 800 us"), rink.out());
+    }
+
+    @Test
     void shouldWriteTheSameMetricsAndPictureForTheSameSeed(@TempDir Path a, @TempDir Path b) throws Exception {
         String[] args = {"assess", "--scene", "orchard-pan", "--width", "48", "--height", "36", "--seconds", "1",
             "--warmup", "0.2", "--snapshots", "1", "--seed", "3"};

@@ -68,7 +68,9 @@ class SurgeCommandTest {
         assertRefused("--packet-us=50.0 outside [100, 100000]", "--packet-us", "50");
         assertRefused("--transport=sctp: expected tcp or udp", "--transport", "sctp");
         assertRefused("--http=localhost: expected HOST:PORT", "--http", "localhost");
-        assertRefused("--scene=meadow: expected one of parcel-line, dock-door, orchard-pan", "--scene", "meadow");
+        assertRefused("--scene=meadow: expected one of parcel-line, dock-door, orchard-pan, floodlit-hoist, stockroom-pan, "
+                + "rink-shot, parcel-line_dark, dock-door_dark, orchard-pan_dark, floodlit-hoist_dark, stockroom-pan_dark, "
+                + "rink-shot_dark", "--scene", "meadow");
     }
 
     /** Column names the issue asks for, each must be in the CSV header. */
