@@ -33,7 +33,7 @@ import org.openjdk.jmh.annotations.State;
 @OutputTimeUnit(TimeUnit.SECONDS)
 public class StageBenchmark {
     /** The stage to measure. */
-    @Param({"refractory", "hot-pixel", "background-activity", "correlation", "direct-integration",
+    @Param({"refractory", "hot-pixel", "background-activity", "correlation", "patch-support", "direct-integration",
             "high-pass", "complementary", "kalman-fusion"})
     public String stage;
 

@@ -23,6 +23,8 @@ final class Stages {
                 return "background-activity(window=2ms)";
             case "correlation":
                 return "correlation(window=2ms, support=2)";
+            case "patch-support":
+                return "patch-support(window=10ms, support=6, radius=2)";
             case "direct-integration":
                 return "direct-integration(contrast=0.2)";
             case "high-pass":

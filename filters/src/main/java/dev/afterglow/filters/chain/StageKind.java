@@ -54,10 +54,11 @@ public enum StageKind {
             return new BackgroundActivityFilter(w, h, (int) s.get("window"), (int) s.get("support"));
         }
     },
-    /** {@link PatchSupportFilter}: k of the other pixels of a (2r+1)x(2r+1) patch within dT. */
+    /** {@link PatchSupportFilter}: weighted support from a (2r+1)x(2r+1) patch within dT. */
     PATCH_SUPPORT("patch-support", false, List.of(
-            new Param("window", Unit.TIME, 8_000, 1, 1_000_000, "window dT"),
-            new Param("support", Unit.INTEGER, 3, 1, 48, "other pixels of the patch that must have fired within dT"),
+            new Param("window", Unit.TIME, 10_000, 1, 1_000_000, "window dT"),
+            new Param("support", Unit.INTEGER, 6, 1, PatchSupportFilter.maxSupport(PatchSupportFilter.MAX_RADIUS),
+                    "weight needed from patch pixels that fired within dT; ring d weighs radius+1-d"),
             new Param("radius", Unit.INTEGER, 2, 1, PatchSupportFilter.MAX_RADIUS, "patch radius r: (2r+1)x(2r+1) pixels"))) {
         @Override
         EventStage build(StageSpec s, int w, int h) {
@@ -67,10 +68,10 @@ public enum StageKind {
         @Override
         void checkTogether(StageSpec s) {
             int r = (int) s.get("radius");
-            int others = (2 * r + 1) * (2 * r + 1) - 1;
-            if (s.get("support") > others) {
-                throw new ChainSpecException("patch-support.support=" + (int) s.get("support") + " > " + others
-                        + ", the other pixels of a " + (2 * r + 1) + "x" + (2 * r + 1) + " patch (patch-support.radius=" + r + ")");
+            int most = PatchSupportFilter.maxSupport(r);
+            if (s.get("support") > most) {
+                throw new ChainSpecException("patch-support.support=" + (int) s.get("support") + " > " + most
+                        + ", the weight of a whole " + (2 * r + 1) + "x" + (2 * r + 1) + " patch (patch-support.radius=" + r + ")");
             }
         }
     },

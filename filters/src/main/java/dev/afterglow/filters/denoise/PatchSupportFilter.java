@@ -5,22 +5,25 @@ import dev.afterglow.filters.EventStage;
 import dev.afterglow.filters.StageCounters;
 
 /**
- * Patch-support filter: passes an event only if at least {@code support} other pixels of the
- * (2r+1)x(2r+1) patch centred on it had an event within the window dT before it.
+ * Patch-support filter: passes an event only if the pixels of the (2r+1)x(2r+1) patch centred on
+ * it that had an event within the window dT before it add up to at least {@code support}, where a
+ * pixel on ring d around the event (d = max(|dx|, |dy|), 1 .. r) weighs r + 1 - d: with r = 2 the 8
+ * nearest neighbours count 2 and the 16 pixels of the outer ring 1.
  *
  * <p>This is the k-neighbour spatiotemporal correlation filter of S. Guo and T. Delbruck, "Low
- * cost and latency event camera background activity denoising", IEEE TPAMI (2022), taken from
- * the 3x3 neighbourhood to a 5x5 (or 7x7) one, which that paper discusses as a way to gather
- * support when motion is slow; counting support over a larger patch is also the event-density
- * criterion of Feng et al., "Event density based denoising method for dynamic vision sensor",
- * Applied Sciences 10(6), 2020. Under a slow pan the edge that made an event has moved on only a
- * fraction of a pixel within a short window, so in a 3x3 neighbourhood few pixels have fired yet;
- * the 24 pixels of a 5x5 patch include more of the same edge, while the support an isolated noise
- * event finds from independent noise of rate r per pixel stays Poisson with mean 24·r·dT.
+ * cost and latency event camera background activity denoising", IEEE TPAMI (2022), taken from the
+ * 3x3 neighbourhood to a 5x5 patch, which gathers support when motion is slow: the edge that made
+ * an event has moved on only a fraction of a pixel within a short window, so few of the 8 nearest
+ * pixels have fired yet, while more of the same edge lies in the outer ring. Counting support over
+ * a larger patch is also the event-density criterion of Feng et al., "Event density based
+ * denoising method for dynamic vision sensor", Applied Sciences 10(6), 2020. The weights that fall
+ * with the ring are our own choice, measured on our scenes: on the tuning seeds they gave a larger
+ * area under the ROC curve than the plain 5x5 count on every scene tried, slow and fast. With
+ * r = 1 every weight is 1 and the filter is the k-of-8 correlation filter.
  *
  * <p>Every event (passed or not) stamps its pixel. Each pixel counts once, by its latest event,
- * whatever the polarity (measured on our scenes: requiring the same polarity lost as much signal
- * as noise). State: a timestamp map padded by r pixels on every side, so the patch is read
+ * whatever the polarity (measured on our scenes: requiring the same polarity lowered the area
+ * under the ROC curve). State: a timestamp map padded by r pixels on every side, so the patch is read
  * without bounds checks; pixels outside the sensor never fire. Threading: single owner thread.
  */
 public final class PatchSupportFilter implements EventStage {
@@ -31,6 +34,7 @@ public final class PatchSupportFilter implements EventStage {
     private final int support;
     private final int radius;
     private final int[] offsets;
+    private final int[] weights;
     private final PixelTimes stamps;
     private final int stride;
     private final StageCounters counters = new StageCounters();
@@ -39,8 +43,8 @@ public final class PatchSupportFilter implements EventStage {
      * @param width sensor width
      * @param height sensor height
      * @param windowUs window dT in microseconds, 1 .. 1 000 000
-     * @param support pixels of the patch (besides the event's own) that must have fired within
-     *     dT, 1 .. (2r+1)^2 - 1
+     * @param support weight of the patch pixels that must have fired within dT, 1 ..
+     *     {@link #maxSupport(int) maxSupport(r)}
      * @param radius patch radius r, 1 .. {@value #MAX_RADIUS} (1: the 3x3 neighbourhood)
      */
     public PatchSupportFilter(int width, int height, int windowUs, int support, int radius) {
@@ -50,9 +54,9 @@ public final class PatchSupportFilter implements EventStage {
         if (radius < 1 || radius > MAX_RADIUS) {
             throw new IllegalArgumentException("patch-support.radius=" + radius + " outside [1, " + MAX_RADIUS + "]");
         }
-        int others = (2 * radius + 1) * (2 * radius + 1) - 1;
-        if (support < 1 || support > others) {
-            throw new IllegalArgumentException("patch-support.support=" + support + " outside [1, " + others
+        int most = maxSupport(radius);
+        if (support < 1 || support > most) {
+            throw new IllegalArgumentException("patch-support.support=" + support + " outside [1, " + most
                     + "] (radius " + radius + ")");
         }
         this.windowUs = windowUs;
@@ -60,15 +64,31 @@ public final class PatchSupportFilter implements EventStage {
         this.radius = radius;
         this.stride = width + 2 * radius;
         this.stamps = new PixelTimes(stride * (height + 2 * radius));
+        int others = (2 * radius + 1) * (2 * radius + 1) - 1;
         this.offsets = new int[others];
+        this.weights = new int[others];
+        // Inner rings first: they weigh most, so the count stops early more often.
         int k = 0;
-        for (int dy = -radius; dy <= radius; dy++) {
-            for (int dx = -radius; dx <= radius; dx++) {
-                if (dx != 0 || dy != 0) {
-                    offsets[k++] = dy * stride + dx;
+        for (int ring = 1; ring <= radius; ring++) {
+            for (int dy = -ring; dy <= ring; dy++) {
+                for (int dx = -ring; dx <= ring; dx++) {
+                    if (Math.max(Math.abs(dx), Math.abs(dy)) == ring) {
+                        offsets[k] = dy * stride + dx;
+                        weights[k] = radius + 1 - ring;
+                        k++;
+                    }
                 }
             }
         }
+    }
+
+    /** The weight of the whole patch of radius {@code r}: the largest support that can be met. */
+    public static int maxSupport(int r) {
+        int sum = 0;
+        for (int ring = 1; ring <= r; ring++) {
+            sum += 8 * ring * (r + 1 - ring);
+        }
+        return sum;
     }
 
     @Override
@@ -81,6 +101,7 @@ public final class PatchSupportFilter implements EventStage {
         int base = stamps.base(batch);
         int[] s = stamps.stamps;
         int[] off = offsets;
+        int[] wt = weights;
         int m = off.length;
         int[] xs = batch.x;
         int[] ys = batch.y;
@@ -98,7 +119,7 @@ public final class PatchSupportFilter implements EventStage {
             // Stop counting once enough support is found: the outcome is the same.
             for (int j = 0; j < m && found < k; j++) {
                 if (now - s[c + off[j]] <= dt) {
-                    found++;
+                    found += wt[j];
                 }
             }
             s[c] = now;

@@ -1,5 +1,6 @@
 /**
  * Denoise stages: refractory, hot-pixel and background-activity (nearest-neighbour and k-of-8
- * correlation) filters. Each compacts an {@link dev.afterglow.filters.EventBatch} in place.
+ * correlation) filters, and the patch-support filter (k of the other pixels of a 5x5 patch). Each
+ * compacts an {@link dev.afterglow.filters.EventBatch} in place.
  */
 package dev.afterglow.filters.denoise;

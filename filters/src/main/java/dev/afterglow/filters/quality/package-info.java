@@ -4,6 +4,8 @@
  * ({@link dev.afterglow.filters.quality.Ssim}), PSNR and MAE
  * ({@link dev.afterglow.filters.quality.ImageQuality}), and the runner that streams a synthetic
  * scene through several chains side by side and scores them
- * ({@link dev.afterglow.filters.quality.QualityRun}). No network, no allocation per event.
+ * ({@link dev.afterglow.filters.quality.QualityRun}), and the denoisers' receiver operating
+ * characteristics over one stream ({@link dev.afterglow.filters.quality.DenoiseRoc},
+ * {@link dev.afterglow.filters.quality.RocCurve}). No network, no allocation per event.
  */
 package dev.afterglow.filters.quality;

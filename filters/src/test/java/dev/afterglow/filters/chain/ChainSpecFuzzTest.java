@@ -108,7 +108,8 @@ class ChainSpecFuzzTest {
     enum Verdict { PARSES, TOO_CLOSE_TO_CALL, REFUSED }
 
     /**
-     * The verdict of the documented rules (order, limits, whole numbers, complementary's pairs).
+     * The verdict of the documented rules (order, limits, whole numbers, complementary's pairs,
+     * patch-support's support within its patch).
      * A value within a relative 1e-9 of a limit is too close to call: the oracle converts units
      * with its own arithmetic, which may round the last bit differently.
      */
@@ -128,6 +129,18 @@ class ChainSpecFuzzTest {
                 }
                 result = worst(result, atMost(p.min(), x));
                 result = worst(result, atMost(x, p.max()));
+            }
+            if (w.kind() == StageKind.PATCH_SUPPORT) {
+                // The patch's whole weight: 8d pixels on ring d, each weighing radius + 1 - d. A radius
+                // outside its limits is refused by them already (and must not drive this loop).
+                double r = v.get("radius");
+                if (r >= 1 && r <= 3 && r == Math.rint(r)) {
+                    double whole = 0;
+                    for (int d = 1; d <= r; d++) {
+                        whole += 8 * d * (r + 1 - d);
+                    }
+                    result = worst(result, atMost(v.get("support"), whole));
+                }
             }
             if (w.kind() == StageKind.COMPLEMENTARY) {
                 result = worst(result, atMost(v.get("low-cutoff"), v.get("cutoff")));

@@ -150,8 +150,8 @@ class ChainSpecTest {
             values.put(p.key(), v);
         }
         if (kind == StageKind.PATCH_SUPPORT) {
-            double side = 2 * values.get("radius") + 1;
-            values.put("support", Math.min(values.get("support"), side * side - 1));
+            values.put("support", Math.min(values.get("support"),
+                    dev.afterglow.filters.denoise.PatchSupportFilter.maxSupport((int) (double) values.get("radius"))));
         }
         if (kind == StageKind.COMPLEMENTARY) {
             values.put("low-cutoff", Math.min(values.get("low-cutoff"), values.get("cutoff")));
@@ -180,10 +180,11 @@ class ChainSpecTest {
         assertRejected("hot-pixel(factor=1) | high-pass", "hot-pixel.factor", "1", "< 2");
         assertRejected("background-activity(window=2s) | high-pass", "background-activity.window", "2000000us", "> 1000000us");
         assertRejected("complementary(saturated=1.5)", "complementary.saturated", "1.5", "> 1");
-        assertRejected("patch-support(support=49) | high-pass", "patch-support.support", "49", "> 48");
+        assertRejected("patch-support(support=81) | high-pass", "patch-support.support", "81", "> 80");
         assertRejected("patch-support(radius=4) | high-pass", "patch-support.radius", "4", "> 3");
         assertRejected("patch-support(radius=1, support=9) | high-pass", "patch-support.support=9", "> 8",
                 "3x3", "patch-support.radius=1");
+        assertRejected("patch-support(support=33) | high-pass", "patch-support.support=33", "> 32", "5x5");
         assertRejected("patch-support(window=0us) | high-pass", "patch-support.window", "0us", "< 1us");
         assertRejected("complementary(dark=0.96)", "complementary.dark", "0.96", "complementary.saturated", "0.95");
     }

@@ -13,14 +13,15 @@ import org.junit.jupiter.params.provider.CsvSource;
 
 /**
  * Checks {@link PatchSupportFilter} against a naive reference written from the definition: pass an
- * event if at least k of the other pixels of the (2r+1)x(2r+1) patch around it (those inside the
- * sensor) had an event within dT before it; every event stamps its pixel. With r = 1 this is the
+ * event if the pixels of the (2r+1)x(2r+1) patch around it (those inside the sensor, not its own)
+ * that had an event within dT before it weigh at least k together, a pixel at Chebyshev distance d
+ * weighing r + 1 - d; every event stamps its pixel. With r = 1 every weight is 1 and this is the
  * k-of-8 correlation filter of Guo and Delbruck (TPAMI 2022), so the stage must also agree with
  * {@link BackgroundActivityFilter} there.
  */
 class PatchSupportFilterTest {
 
-    /** Naive filter: long stamps, explicit bounds checks, no padding, the whole patch scanned. */
+    /** Naive filter: long stamps, explicit bounds checks, no padding, the whole patch scanned in row order. */
     static final class NaivePatchSupport {
         private final int width;
         private final int height;
@@ -51,7 +52,7 @@ class PatchSupportFilterTest {
                     }
                     int n = ny * width + nx;
                     if (fired[n] && t - latest[n] <= windowUs) {
-                        found++;
+                        found += radius + 1 - Math.max(Math.abs(dx), Math.abs(dy));
                     }
                 }
             }
@@ -70,17 +71,17 @@ class PatchSupportFilterTest {
     @ParameterizedTest(name = "{0}x{1} seed {2} window {3}us support {4} radius {5}")
     @CsvSource({
         "32, 24, 1, 2000, 1, 2",
-        "32, 24, 2, 7000, 3, 2",
-        "32, 24, 3, 1000000, 3, 2",
-        "32, 24, 4, 20000, 6, 2",
+        "32, 24, 2, 6000, 6, 2",
+        "32, 24, 3, 1000000, 6, 2",
+        "32, 24, 4, 20000, 11, 2",
         "32, 24, 5, 5000, 2, 1",
-        "32, 24, 6, 50000, 8, 3",
-        "40, 17, 7, 7000, 3, 2",
-        "40, 17, 8, 3000, 4, 3",
-        "17, 40, 9, 10000, 5, 2",
+        "32, 24, 6, 50000, 20, 3",
+        "40, 17, 7, 6000, 5, 2",
+        "40, 17, 8, 3000, 7, 3",
+        "17, 40, 9, 10000, 3, 2",
         "17, 40, 10, 100, 1, 2",
-        "5, 3, 11, 50000, 3, 2",
-        "3, 5, 12, 50000, 2, 3",
+        "5, 3, 11, 50000, 6, 2",
+        "3, 5, 12, 50000, 9, 3",
     })
     void shouldPassExactlyTheEventsTheNaiveFilterPasses(int w, int h, long seed, int windowUs, int support, int radius) {
         RandomEventStream s = RandomEventStream.builder(w, h, seed).disorder(0.02, 30).build();
@@ -112,12 +113,14 @@ class PatchSupportFilterTest {
     }
 
     @Test
-    void shouldCountOnlyPatchPixelsInsideTheSensorAtCornersAndEdges() {
-        // With radius 2 a corner pixel has 8 patch pixels inside the sensor and a pixel on an edge
-        // (2 from the corners) 14; with all of them fresh, a corner event passes k <= 8, an edge event k <= 14.
+    void shouldWeighOnlyPatchPixelsInsideTheSensorAtCornersAndEdges() {
+        // Radius 2, all patch pixels fresh. Corner (0,0): 3 inner pixels x 2 + 5 outer x 1 = 11.
+        // Edge (4,0) of a 9-wide sensor: 5 inner x 2 + 9 outer x 1 = 19. So a corner event passes
+        // k <= 11, an edge event k <= 19 (of 32 for a whole patch).
         int w = 9;
         int h = 6;
-        for (int k = 1; k <= 24; k++) {
+        assertEquals(32, PatchSupportFilter.maxSupport(2));
+        for (int k = 1; k <= 32; k++) {
             PatchSupportFilter f = new PatchSupportFilter(w, h, 1000, k, 2);
             EventBatch b = new EventBatch(256);
             b.reset(10_000);
@@ -139,9 +142,17 @@ class PatchSupportFilterTest {
                     edge |= b.x[i] == 4;
                 }
             }
-            assertEquals(k <= 8, corner, "corner, k=" + k);
-            assertEquals(k <= 14, edge, "edge, k=" + k);
+            assertEquals(k <= 11, corner, "corner, k=" + k);
+            assertEquals(k <= 19, edge, "edge, k=" + k);
         }
+    }
+
+    @Test
+    void shouldGiveThePatchItsWholeWeight() {
+        // Ring d holds 8d pixels weighing r + 1 - d.
+        assertEquals(8, PatchSupportFilter.maxSupport(1));
+        assertEquals(2 * 8 + 1 * 16, PatchSupportFilter.maxSupport(2));
+        assertEquals(3 * 8 + 2 * 16 + 1 * 24, PatchSupportFilter.maxSupport(3));
     }
 
     @Test
@@ -149,7 +160,7 @@ class PatchSupportFilterTest {
         RandomEventStream s = RandomEventStream.builder(12, 9, 13)
                 .startUs((1L << 31) - 1_000_000_000L).activeUs(20_000_000).noiseHz(3).hot(2, 5, 40)
                 .burstHz(20).edgeHz(0.5).gaps(6, 600_000_000L, 1_500_000_000L).batches(5000, 60_000_000L).build();
-        for (int[] c : new int[][] {{7_000, 3, 2}, {1_000_000, 1, 2}, {500_000, 10, 3}}) {
+        for (int[] c : new int[][] {{6_000, 6, 2}, {1_000_000, 1, 2}, {500_000, 25, 3}}) {
             EventLog[] r = runBoth(s, c[0], c[1], c[2]);
             EventLog.assertSameEvents(r[0], r[1], "support " + c[1] + " radius " + c[2] + " window " + c[0] + "us");
             assertTrue(r[0].size() > 0 && r[0].size() < s.size, "passed " + r[0].size() + " of " + s.size);
@@ -164,7 +175,8 @@ class PatchSupportFilterTest {
         assertMessage(() -> new PatchSupportFilter(8, 8, 1000, 3, 4), "patch-support.radius=4");
         assertMessage(() -> new PatchSupportFilter(8, 8, 1000, 0, 2), "patch-support.support=0");
         assertMessage(() -> new PatchSupportFilter(8, 8, 1000, 9, 1), "patch-support.support=9 outside [1, 8]");
-        assertMessage(() -> new PatchSupportFilter(8, 8, 1000, 25, 2), "patch-support.support=25 outside [1, 24]");
+        assertMessage(() -> new PatchSupportFilter(8, 8, 1000, 33, 2), "patch-support.support=33 outside [1, 32]");
+        assertMessage(() -> new PatchSupportFilter(8, 8, 1000, 81, 3), "patch-support.support=81 outside [1, 80]");
     }
 
     private static void assertMessage(org.junit.jupiter.api.function.Executable build, String part) {
