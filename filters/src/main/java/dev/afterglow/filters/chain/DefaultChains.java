@@ -9,10 +9,10 @@ package dev.afterglow.filters.chain;
 public final class DefaultChains {
     /** For a sensor whose hello says it sends frames. */
     public static final String WITH_FRAMES =
-            "refractory(period=100us) | patch-support(window=16ms, support=4) | kalman-fusion(contrast=0.2)";
+            "refractory(period=100us) | patch-support(window=16ms) | kalman-fusion(contrast=0.2)";
     /** For an events-only sensor. */
     public static final String EVENTS_ONLY =
-            "refractory(period=100us) | patch-support(window=16ms, support=4) | high-pass(cutoff=3rad/s, contrast=0.2)";
+            "refractory(period=100us) | patch-support(window=16ms) | high-pass(cutoff=3rad/s, contrast=0.2)";
 
     private DefaultChains() {
     }
