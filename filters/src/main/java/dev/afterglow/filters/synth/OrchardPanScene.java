@@ -17,16 +17,12 @@ import java.util.SplittableRandom;
 public final class OrchardPanScene implements Scene {
     /** Scene name. */
     public static final String NAME = "orchard-pan";
-    private static final long CYCLE_US = 8_000_000;
     private static final long MOVE_US = 3_000_000;
     private static final long HOLD_US = 1_000_000;
 
     private final int width;
     private final int height;
-    private final int panoWidth;
-    private final double amplitudeX;
-    private final double amplitudeY;
-    private final float[] pano;
+    private final CameraPan pan;
 
     /**
      * @param width image width, at least 32
@@ -36,12 +32,9 @@ public final class OrchardPanScene implements Scene {
     public OrchardPanScene(int width, int height, long seed) {
         this.width = width;
         this.height = height;
-        this.amplitudeX = 0.1 * width;
-        this.amplitudeY = 0.012 * height;
-        this.panoWidth = width + (int) Math.ceil(amplitudeX) + 3;
-        int panoHeight = height + (int) Math.ceil(amplitudeY) + 3;
-        this.pano = panorama(panoWidth, panoHeight, width / 640.0, height / 480.0,
-                new SplittableRandom(seed ^ 0x4F52_4348L));
+        SplittableRandom random = new SplittableRandom(seed ^ 0x4F52_4348L);
+        this.pan = new CameraPan(width, height, 0.1 * width, 0.012 * height, MOVE_US, HOLD_US, false,
+                (w, h) -> panorama(w, h, width / 640.0, height / 480.0, random));
     }
 
     private static float[] panorama(int w, int h, double sx, double sy, SplittableRandom random) {
@@ -152,21 +145,6 @@ public final class OrchardPanScene implements Scene {
         return out;
     }
 
-    /** Camera offset in panorama pixels at {@code timeUs}: 0 .. 1 of the amplitude. */
-    static double panFraction(long timeUs) {
-        long t = Math.floorMod(timeUs, CYCLE_US);
-        if (t < MOVE_US) {
-            return (1 - StrictMath.cos(Math.PI * t / MOVE_US)) / 2;
-        }
-        if (t < MOVE_US + HOLD_US) {
-            return 1;
-        }
-        if (t < 2 * MOVE_US + HOLD_US) {
-            return (1 + StrictMath.cos(Math.PI * (t - MOVE_US - HOLD_US) / MOVE_US)) / 2;
-        }
-        return 0;
-    }
-
     @Override
     public String name() {
         return NAME;
@@ -184,49 +162,17 @@ public final class OrchardPanScene implements Scene {
 
     @Override
     public double maxSpeedPxPerS() {
-        // Peak of A·(1 - cos(πt/T))/2 is A·π/(2T) per axis.
-        return StrictMath.hypot(amplitudeX, amplitudeY) * Math.PI / (2 * MOVE_US * 1e-6);
+        return pan.maxSpeedPxPerS();
     }
 
     @Override
     public void renderRow(long timeUs, int y, int x0, int x1, float[] out, int offset) {
-        double f = panFraction(timeUs);
-        double ox = amplitudeX * f;
-        double oy = amplitudeY * f;
-        int ix = (int) ox;
-        int iy = (int) oy;
-        float fx = (float) (ox - ix);
-        float fy = (float) (oy - iy);
-        float gx = 1 - fx;
-        float gy = 1 - fy;
-        int r0 = (y + iy) * panoWidth + ix;
-        int r1 = r0 + panoWidth;
-        float[] p = pano;
-        for (int x = x0; x < x1; x++) {
-            float top = gx * p[r0 + x] + fx * p[r0 + x + 1];
-            float bottom = gx * p[r1 + x] + fx * p[r1 + x + 1];
-            out[offset + x - x0] = gy * top + fy * bottom;
-        }
+        pan.renderRow(timeUs, y, x0, x1, out, offset);
     }
 
     @Override
     public int changedRegions(long fromUs, long toUs, int[] rects) {
-        // The camera holds still only inside a hold phase; if both ends fall in the same hold, nothing changes.
-        if (toUs - fromUs < HOLD_US && panFraction(fromUs) == panFraction(toUs) && inHold(fromUs) && inHold(toUs)
-                && Math.floorDiv(fromUs, CYCLE_US) == Math.floorDiv(toUs, CYCLE_US)
-                && Math.floorMod(fromUs, CYCLE_US) / (MOVE_US + HOLD_US) == Math.floorMod(toUs, CYCLE_US) / (MOVE_US + HOLD_US)) {
-            return 0;
-        }
-        rects[0] = 0;
-        rects[1] = 0;
-        rects[2] = width;
-        rects[3] = height;
-        return 1;
-    }
-
-    private static boolean inHold(long timeUs) {
-        long t = Math.floorMod(timeUs, CYCLE_US);
-        return (t >= MOVE_US && t < MOVE_US + HOLD_US) || t >= 2 * MOVE_US + HOLD_US;
+        return pan.changedRegions(fromUs, toUs, rects);
     }
 
     @Override

@@ -22,15 +22,11 @@ public final class StockroomPanScene implements Scene {
     public static final String NAME = "stockroom-pan";
     private static final long MOVE_US = 4_000_000;
     private static final long HOLD_US = 2_000_000;
-    private static final long CYCLE_US = 2 * (MOVE_US + HOLD_US);
     private static final int LEVELS = 5;
 
     private final int width;
     private final int height;
-    private final int panoWidth;
-    private final double amplitudeX;
-    private final double amplitudeY;
-    private final float[] pano;
+    private final CameraPan pan;
 
     /**
      * @param width image width, at least 32
@@ -40,12 +36,9 @@ public final class StockroomPanScene implements Scene {
     public StockroomPanScene(int width, int height, long seed) {
         this.width = width;
         this.height = height;
-        this.amplitudeX = 0.08 * width;
-        this.amplitudeY = 0.01 * height;
-        this.panoWidth = width + (int) Math.ceil(amplitudeX) + 3;
-        int panoHeight = height + (int) Math.ceil(amplitudeY) + 3;
-        this.pano = panorama(panoWidth, panoHeight, width / 640.0, height / 480.0,
-                new SplittableRandom(seed ^ 0x5354_4F43L));
+        SplittableRandom random = new SplittableRandom(seed ^ 0x5354_4F43L);
+        this.pan = new CameraPan(width, height, 0.08 * width, 0.01 * height, MOVE_US, HOLD_US, true,
+                (w, h) -> panorama(w, h, width / 640.0, height / 480.0, random));
     }
 
     private static float[] panorama(int w, int h, double sx, double sy, SplittableRandom random) {
@@ -151,21 +144,6 @@ public final class StockroomPanScene implements Scene {
         }
     }
 
-    /** Camera offset at {@code timeUs} as a fraction of the amplitude, 0 .. 1. */
-    static double panFraction(long timeUs) {
-        long t = Math.floorMod(timeUs, CYCLE_US);
-        if (t < MOVE_US) {
-            return (1 - StrictMath.cos(Math.PI * t / MOVE_US)) / 2;
-        }
-        if (t < MOVE_US + HOLD_US) {
-            return 1;
-        }
-        if (t < 2 * MOVE_US + HOLD_US) {
-            return (1 + StrictMath.cos(Math.PI * (t - MOVE_US - HOLD_US) / MOVE_US)) / 2;
-        }
-        return 0;
-    }
-
     @Override
     public String name() {
         return NAME;
@@ -183,55 +161,17 @@ public final class StockroomPanScene implements Scene {
 
     @Override
     public double maxSpeedPxPerS() {
-        // Peak of A·(1 - cos(πt/T))/2 is A·π/(2T) per axis.
-        return StrictMath.hypot(amplitudeX, amplitudeY) * Math.PI / (2 * MOVE_US * 1e-6);
+        return pan.maxSpeedPxPerS();
     }
 
     @Override
     public void renderRow(long timeUs, int y, int x0, int x1, float[] out, int offset) {
-        // The camera pans left: the view's offset into the panorama shrinks from its maximum.
-        double f = 1 - panFraction(timeUs);
-        double ox = amplitudeX * f;
-        double oy = amplitudeY * f;
-        int ix = (int) ox;
-        int iy = (int) oy;
-        float fx = (float) (ox - ix);
-        float fy = (float) (oy - iy);
-        float gx = 1 - fx;
-        float gy = 1 - fy;
-        int r0 = (y + iy) * panoWidth + ix;
-        int r1 = r0 + panoWidth;
-        float[] p = pano;
-        for (int x = x0; x < x1; x++) {
-            float top = gx * p[r0 + x] + fx * p[r0 + x + 1];
-            float bottom = gx * p[r1 + x] + fx * p[r1 + x + 1];
-            out[offset + x - x0] = gy * top + fy * bottom;
-        }
+        pan.renderRow(timeUs, y, x0, x1, out, offset);
     }
 
     @Override
     public int changedRegions(long fromUs, long toUs, int[] rects) {
-        // Nothing changes when both ends lie in the same hold of the same cycle.
-        long c0 = Math.floorDiv(fromUs, CYCLE_US);
-        long c1 = Math.floorDiv(toUs, CYCLE_US);
-        int h0 = hold(fromUs);
-        if (c0 == c1 && h0 >= 0 && h0 == hold(toUs)) {
-            return 0;
-        }
-        rects[0] = 0;
-        rects[1] = 0;
-        rects[2] = width;
-        rects[3] = height;
-        return 1;
-    }
-
-    /** Which hold {@code timeUs} falls in (0 or 1), or -1 while the camera moves. */
-    private static int hold(long timeUs) {
-        long t = Math.floorMod(timeUs, CYCLE_US);
-        if (t >= MOVE_US && t < MOVE_US + HOLD_US) {
-            return 0;
-        }
-        return t >= 2 * MOVE_US + HOLD_US ? 1 : -1;
+        return pan.changedRegions(fromUs, toUs, rects);
     }
 
     @Override
