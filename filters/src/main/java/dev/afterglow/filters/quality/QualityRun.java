@@ -194,6 +194,20 @@ public final class QualityRun {
         public long sensorEvents() {
             return signalEvents + backgroundEvents + hotPixelEvents;
         }
+
+        /**
+         * This run pooled with {@code other}, the same methods on another seed: each method's
+         * totals are added into this report's (see {@link MethodResult#pool}), and the sensor's
+         * counts and times summed.
+         */
+        public Report pool(Report other) {
+            for (int k = 0; k < methods.size(); k++) {
+                methods.get(k).pool(other.methods.get(k));
+            }
+            return new Report(methods, signalEvents + other.signalEvents, backgroundEvents + other.backgroundEvents,
+                    hotPixelEvents + other.hotPixelEvents, framesApplied + other.framesApplied, sensorNs + other.sensorNs,
+                    scoringNs + other.scoringNs, totalNs + other.totalNs);
+        }
     }
 
     /** Runs to the end. */

@@ -4,7 +4,6 @@ import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import dev.afterglow.filters.chain.ChainSpec;
 import dev.afterglow.filters.chain.DefaultChains;
-import dev.afterglow.filters.quality.QualityRun.MethodResult;
 import dev.afterglow.filters.synth.SceneKind;
 import java.util.ArrayList;
 import java.util.EnumMap;
@@ -51,22 +50,16 @@ class FusionTargetsTest {
             methods.add(new QualityRun.Method("plain-comp", ChainSpec.parse("complementary(cutoff="
                     + QualityRun.PLAIN_COMPLEMENTARY_CUTOFF + ", low-cutoff=" + QualityRun.PLAIN_COMPLEMENTARY_CUTOFF + ")")));
             methods.add(new QualityRun.Method("default", DefaultChains.forSensor(true)));
-            List<MethodResult> pooled = null;
+            QualityRun.Report pooled = null;
             for (long seed : BenchmarkSeeds.VALIDATION) {
-                List<MethodResult> one = new QualityRun(new QualityRun.Settings(k.create(WIDTH, HEIGHT, seed),
+                QualityRun.Report one = new QualityRun(new QualityRun.Settings(k.create(WIDTH, HEIGHT, seed),
                         k.sensor(WIDTH, HEIGHT).seed(seed).build(), DURATION_US, 200_000, 1_000_000, new long[0], methods))
-                        .run(new QualityRun.Observer() { }).methods();
-                if (pooled == null) {
-                    pooled = one;
-                } else {
-                    for (int m = 0; m < one.size(); m++) {
-                        pooled.get(m).pool(one.get(m));
-                    }
-                }
+                        .run(new QualityRun.Observer() { });
+                pooled = pooled == null ? one : pooled.pool(one);
             }
             double[] s = new double[methods.size()];
             for (int m = 0; m < s.length; m++) {
-                s[m] = pooled.get(m).meanSsim();
+                s[m] = pooled.methods().get(m).meanSsim();
             }
             return s;
         });

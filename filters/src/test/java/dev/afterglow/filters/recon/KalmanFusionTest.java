@@ -84,6 +84,24 @@ class KalmanFusionTest {
     }
 
     @Test
+    void shouldTakeFramesWithImpossibleExposuresAgainstTheCurrentEstimateWithoutTrackingThem() {
+        // Exposure times come from the wire: zero-length, reversed, jumping back or far ahead, and
+        // a gap past the longest tracked period. None may throw, divide by zero or be tracked.
+        KalmanFusion f = filter(1, 1, 0.3, 1, 0, 2);
+        EventBatch batch = new EventBatch(4);
+        long[][] windows = {{0, 10_000}, {50_000, 50_000}, {100_000, 90_000}, {20_000, 30_000},
+            {1L << 51, (1L << 51) + 10_000}, {(1L << 51) + 50_000, (1L << 51) + 50_000}};
+        for (long[] w : windows) {
+            f.applyFrame(w[0], w[1], frame(1, 90), 8);
+            batch.reset(Math.max(0, w[1]));
+            batch.add(0, 0, Math.max(0, w[1]) + 1, 1);
+            f.process(batch);
+            assertTrue(Double.isFinite(f.estimate(0)) && Double.isFinite(f.variance(0)), "window " + w[0] + ".." + w[1]);
+        }
+        assertEquals(0, f.framesAligned(), "no impossible cadence is tracked");
+    }
+
+    @Test
     void shouldHoldTheFrameExactlyInThePureFrameLimit() {
         // Pure-frame limit: as R -> 0 against an unknown prior, K -> 1 and the update returns the
         // measurement (Kalman update equations, common practice). Here R is quantisation only.

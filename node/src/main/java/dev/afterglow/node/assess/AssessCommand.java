@@ -156,7 +156,7 @@ public final class AssessCommand implements Callable<Integer> {
                     }
                 });
                 perSeedSsim.add(one.methods().stream().mapToDouble(MethodResult::meanSsim).toArray());
-                report = report == null ? one : pool(report, one);
+                report = report == null ? one : report.pool(one);
             }
         }
         printTable(log, report, methods, durationUs * seedList.length, intervalUs);
@@ -264,17 +264,6 @@ public final class AssessCommand implements Callable<Integer> {
             list.add(new QualityRun.Method(n == 1 ? label : label + "#" + n, spec));
         }
         return list;
-    }
-
-    /** Pools the second seed's results into the first's. */
-    private static QualityRun.Report pool(QualityRun.Report a, QualityRun.Report b) {
-        for (int k = 0; k < a.methods().size(); k++) {
-            a.methods().get(k).pool(b.methods().get(k));
-        }
-        return new QualityRun.Report(a.methods(), a.signalEvents() + b.signalEvents(),
-                a.backgroundEvents() + b.backgroundEvents(), a.hotPixelEvents() + b.hotPixelEvents(),
-                a.framesApplied() + b.framesApplied(), a.sensorNs() + b.sensorNs(), a.scoringNs() + b.scoringNs(),
-                a.totalNs() + b.totalNs());
     }
 
     private long[] seedList() {
