@@ -32,6 +32,7 @@ class OverloadTest {
     private static final int H = 240;
     private static final long PACKET_US = 5_000;
     private static final double BUDGET_MS = 100;
+    private static final int BURST_PACKET_EVENTS = 400_000;
 
     @Test
     void shouldShedBurstAndRecoverLatencyWithinBudget() throws Exception {
@@ -40,10 +41,12 @@ class OverloadTest {
                 limits: {max-message-bytes: 8388608, max-pending-packets: 64}
                 sensors:
                   - {id: cam, width: %d, height: %d, frame-rate-hz: 50, latency-budget-ms: %s,
-                     chain: "refractory | background-activity(window=5ms) | high-pass(cutoff=3rad/s)"}
+                     chain: "refractory | patch-support(window=10ms) | high-pass(cutoff=3rad/s)"}
                 """.formatted(W, H, BUDGET_MS), "test");
         byte[] quiet = uniformEvents(500, PACKET_US, 1);        // 100 k events/s
-        byte[] burst = uniformEvents(200_000, PACKET_US, 2);    // 40 M events/s: far above one core's capacity
+        // 80 M events/s through the costliest denoiser: several times what one core processes on any
+        // machine this runs on, so the burst is shed whatever the CI host's speed.
+        byte[] burst = uniformEvents(BURST_PACKET_EVENTS, PACKET_US, 2);
         long burstStartUs = 1_000_000;
         long burstEndUs = 2_000_000;
         long endUs = 6_000_000;
@@ -92,7 +95,8 @@ class OverloadTest {
             long shed = c.get(NodeCounter.PACKETS_SHED_LATENCY) + c.get(NodeCounter.PACKETS_SHED_QUEUE);
             assertTrue(shed > 0, "burst packets were shed and counted: " + StreamingEndToEndTest.describe(node));
             long shedEvents = c.get(NodeCounter.EVENTS_SHED_LATENCY) + c.get(NodeCounter.EVENTS_SHED_QUEUE);
-            assertTrue(shedEvents >= 1_000_000, "at least five whole burst packets shed: " + shedEvents);
+            System.out.println("overload: shed " + shed + " packets, " + shedEvents + " events");
+            assertTrue(shedEvents >= 5L * BURST_PACKET_EVENTS, "at least five whole burst packets shed: " + shedEvents);
 
             List<IntensityFrame> after = new ArrayList<>();
             synchronized (frames) {
