@@ -7,20 +7,21 @@ import dev.afterglow.node.cli.FeedCommand;
 import dev.afterglow.node.cli.ServeCommand;
 import dev.afterglow.node.cli.SurgeCommand;
 import dev.afterglow.node.cli.WatchCommand;
+import dev.afterglow.node.learned.TrainingSetCommand;
 import picocli.CommandLine;
 import picocli.CommandLine.Command;
 
 /**
  * Entry point of the {@code afterglow} command. Subcommands: {@code serve} (run the node), {@code demo}
  * (node + synthetic sensor + subscriber on loopback), {@code feed} (act as a sensor), {@code watch}
- * (act as a subscriber), {@code surge} (load generator), {@code assess} (reconstruction quality report), {@code denoise-roc} (denoiser ROC curves) and {@code stages} (the chain description reference). Exit codes: 0 success, 2 bad usage, 1 runtime failure.
+ * (act as a subscriber), {@code surge} (load generator), {@code assess} (reconstruction quality report), {@code denoise-roc} (denoiser ROC curves), {@code training-set} (synthetic training data for learned reconstruction) and {@code stages} (the chain description reference). Exit codes: 0 success, 2 bad usage, 1 runtime failure.
  */
 @Command(name = "afterglow",
         mixinStandardHelpOptions = true,
         version = "afterglow 0.1.0",
         description = "Live event-camera intensity reconstruction.",
         subcommands = {ServeCommand.class, DemoCommand.class, FeedCommand.class, WatchCommand.class,
-                SurgeCommand.class, AssessCommand.class, DenoiseRocCommand.class, StagesCommand.class, CommandLine.HelpCommand.class})
+                SurgeCommand.class, AssessCommand.class, DenoiseRocCommand.class, TrainingSetCommand.class, StagesCommand.class, CommandLine.HelpCommand.class})
 public final class AfterglowCli implements Runnable {
 
     @CommandLine.Spec
@@ -28,7 +29,7 @@ public final class AfterglowCli implements Runnable {
 
     @Override
     public void run() {
-        throw new CommandLine.ParameterException(spec.commandLine(), "a subcommand is required (serve, demo, feed, watch, surge, assess, denoise-roc, stages)");
+        throw new CommandLine.ParameterException(spec.commandLine(), "a subcommand is required (serve, demo, feed, watch, surge, assess, denoise-roc, training-set, stages)");
     }
 
     /** Builds the command line with one-line errors for bad options. */

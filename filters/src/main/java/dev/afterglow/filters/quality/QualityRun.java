@@ -243,6 +243,7 @@ public final class QualityRun {
         byte[] latestFrame = null;
         ToneMapper toneMapper = new ToneMapper(ToneMap.DEFAULT);
         ImageQuality quality = new ImageQuality(w, h);
+        FlickerMeter flicker = new FlickerMeter(n, m);
         long[] snapshots = s.snapshotTimesUs().clone();
         java.util.Arrays.sort(snapshots);
         int nextSnapshot = 0;
@@ -287,6 +288,7 @@ public final class QualityRun {
                 float[][] displays = snap ? new float[m][] : null;
                 FrameQuality[] scores = snap ? new FrameQuality[m] : null;
                 float[] truthDisplay = null;
+                flicker.truth(truth);
                 for (int k = 0; k < m; k++) {
                     long r0 = System.nanoTime();
                     if (chains[k] != null) {
@@ -299,7 +301,7 @@ public final class QualityRun {
                     long q0 = System.nanoTime();
                     FrameQuality q = quality.evaluate(truth, recon);
                     scoringNs += System.nanoTime() - q0;
-                    results[k].record(t, q, t >= s.warmupUs());
+                    results[k].record(t, q, flicker.measure(k, recon, q.fit()), t >= s.warmupUs());
                     observer.evaluated(t, k, q);
                     if (snap) {
                         displays[k] = quality.fittedDisplay().clone();
@@ -339,6 +341,8 @@ public final class QualityRun {
         private double psnrSum;
         private double ssimSum;
         private double maeSum;
+        private double flickerSum;
+        private int flickerCount;
         private double lastSsim = Double.NaN;
 
         MethodResult(String label, ChainSpec chain) {
@@ -388,6 +392,8 @@ public final class QualityRun {
             psnrSum += other.psnrSum;
             ssimSum += other.ssimSum;
             maeSum += other.maeSum;
+            flickerSum += other.flickerSum;
+            flickerCount += other.flickerCount;
             lastSsim = other.lastSsim;
         }
 
@@ -397,13 +403,17 @@ public final class QualityRun {
             readoutMaxNs = Math.max(readoutMaxNs, ns);
         }
 
-        void record(long timeUs, FrameQuality q, boolean average) {
+        void record(long timeUs, FrameQuality q, double flicker, boolean average) {
             lastSsim = q.ssim();
             if (average) {
                 averaged++;
                 psnrSum += q.psnrDb();
                 ssimSum += q.ssim();
                 maeSum += q.maeLog();
+                if (!Double.isNaN(flicker)) {
+                    flickerSum += flicker;
+                    flickerCount++;
+                }
             }
         }
 
@@ -430,6 +440,14 @@ public final class QualityRun {
         /** Mean absolute error (natural-log units) over the averaged evaluations. */
         public double meanMaeLog() {
             return maeSum / averaged;
+        }
+
+        /**
+         * Mean temporal flicker ({@link FlickerMeter}) over the averaged evaluations that had static
+         * pixels, natural-log units; NaN if none had.
+         */
+        public double meanFlickerLog() {
+            return flickerCount > 0 ? flickerSum / flickerCount : Double.NaN;
         }
 
         /** SSIM at the last evaluation. */

@@ -3,6 +3,7 @@ package dev.afterglow.node.assess;
 import dev.afterglow.filters.chain.ChainSpec;
 import dev.afterglow.filters.chain.StageSpec;
 import dev.afterglow.filters.quality.BenchmarkSeeds;
+import dev.afterglow.filters.quality.FlickerMeter;
 import dev.afterglow.filters.quality.FrameQuality;
 import dev.afterglow.filters.quality.QualityRun;
 import dev.afterglow.filters.quality.QualityRun.MethodResult;
@@ -195,18 +196,19 @@ public final class AssessCommand implements Callable<Integer> {
                         + "PSNR and SSIM on the truth's min..max mapped to [0, 1], MAE in log units; mean of %d evaluations "
                         + "at %s Hz from t=%.1f s.%n",
                 first.averagedEvaluations(), fmt(1e6 / intervalUs), warmupS);
-        log.printf(Locale.ROOT, "%-18s %7s %8s %8s %8s %8s %8s %9s %15s%n", "method", "SSIM", "PSNR dB", "MAE log",
-                "signal", "BA", "hot px", "M ev/s", "readout ms");
-        log.printf(Locale.ROOT, "%-18s %7s %8s %8s %8s %8s %8s %9s %15s%n", "", "", "", "", "kept", "removed", "removed",
-                "processed", "mean / max");
+        log.printf(Locale.ROOT, "%-18s %7s %8s %8s %8s %8s %8s %8s %9s %15s%n", "method", "SSIM", "PSNR dB", "MAE log",
+                "flicker", "signal", "BA", "hot px", "M ev/s", "readout ms");
+        log.printf(Locale.ROOT, "%-18s %7s %8s %8s %8s %8s %8s %8s %9s %15s%n", "", "", "", "", "log", "kept", "removed",
+                "removed", "processed", "mean / max");
         for (MethodResult r : report.methods()) {
-            log.printf(Locale.ROOT, "%-18s %7.4f %8.2f %8.4f %7.1f%% %7.1f%% %7.1f%% %9.1f %7.2f / %5.2f%n", r.label(),
-                    r.meanSsim(), r.meanPsnrDb(), r.meanMaeLog(), 100 * r.keptFraction(EventLabel.SIGNAL),
+            log.printf(Locale.ROOT, "%-18s %7.4f %8.2f %8.4f %8.4f %7.1f%% %7.1f%% %7.1f%% %9.1f %7.2f / %5.2f%n", r.label(),
+                    r.meanSsim(), r.meanPsnrDb(), r.meanMaeLog(), r.meanFlickerLog(), 100 * r.keptFraction(EventLabel.SIGNAL),
                     percentRemoved(r, EventLabel.BACKGROUND), percentRemoved(r, EventLabel.HOT_PIXEL),
                     r.eventsPerSecond() / 1e6, r.meanReadoutMs(), r.maxReadoutMs());
         }
-        log.println("readout = reconstruction read out at the frame time plus the 8-bit tone map; M ev/s = events through "
-                + "the chain per second of this thread's time in it.");
+        log.println("flicker = mean absolute change of the fitted log image between consecutive evaluations where the "
+                + "true log image changed by less than " + FlickerMeter.STATIC_LOG + "; readout = reconstruction read out "
+                + "at the frame time plus the 8-bit tone map; M ev/s = events through the chain per second of this thread's time in it.");
         for (QualityRun.Method m : methods) {
             log.printf(Locale.ROOT, "  %-16s = %s%n", m.label(), m.describe());
         }

@@ -1,0 +1,66 @@
+package dev.afterglow.filters.synth;
+
+import static org.junit.jupiter.api.Assertions.assertArrayEquals;
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertFalse;
+import static org.junit.jupiter.api.Assertions.assertThrows;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import java.util.Arrays;
+import java.util.SplittableRandom;
+import org.junit.jupiter.api.Test;
+
+class TrainingMixSceneTest {
+
+    @Test
+    void everyChangeLiesInsideTheReportedRegionsWhateverTheSeed() {
+        int moving = 0;
+        for (long seed = 1; seed <= 30; seed++) {
+            Scene scene = new TrainingMixScene(64, 48, seed);
+            if (ScenesTest.changesOutsideRegions(scene, new SplittableRandom(seed), 8_000_000) > 0) {
+                moving++;
+            }
+        }
+        assertTrue(moving >= 25, "nearly every random scene moves: " + moving + " of 30");
+    }
+
+    @Test
+    void aSeedReproducesItsSceneAndSeedsDiffer() {
+        float[] a = new float[64 * 48];
+        float[] b = new float[64 * 48];
+        float[] c = new float[64 * 48];
+        new TrainingMixScene(64, 48, 5).render(1_234_567, a);
+        new TrainingMixScene(64, 48, 5).render(1_234_567, b);
+        new TrainingMixScene(64, 48, 6).render(1_234_567, c);
+        assertArrayEquals(a, b);
+        assertFalse(Arrays.equals(a, c));
+        for (float v : a) {
+            assertTrue(Float.isFinite(v));
+        }
+    }
+
+    @Test
+    void scenesSpanTheRangeOfContentTheNetworkMustLearn() {
+        // Over many seeds: some nearly static, some with fast objects, some with a high dynamic range.
+        int slow = 0;
+        int fast = 0;
+        int wide = 0;
+        float[] img = new float[96 * 72];
+        for (long seed = 1; seed <= 60; seed++) {
+            TrainingMixScene s = new TrainingMixScene(96, 72, seed);
+            slow += s.maxSpeedPxPerS() < 96 ? 1 : 0;
+            fast += s.maxSpeedPxPerS() > 2 * 96 ? 1 : 0;
+            s.render(500_000, img);
+            float lo = Float.MAX_VALUE;
+            float hi = -Float.MAX_VALUE;
+            for (float v : img) {
+                lo = Math.min(lo, v);
+                hi = Math.max(hi, v);
+            }
+            wide += hi - lo > Math.log(50) ? 1 : 0;
+        }
+        assertTrue(slow >= 3 && fast >= 10 && wide >= 10, "slow " + slow + ", fast " + fast + ", wide range " + wide);
+        assertEquals(TrainingMixScene.NAME, new TrainingMixScene(32, 24, 1).name());
+        assertThrows(IllegalArgumentException.class, () -> new TrainingMixScene(31, 24, 1));
+    }
+}

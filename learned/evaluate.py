@@ -1,0 +1,73 @@
+#!/usr/bin/python3
+"""Scores a trained Ember checkpoint on benchmark scenes exported with `afterglow training-set --scene`,
+the way the quality report does (per-frame affine fit, truth min..max to [0, 1], SSIM with a
+Gaussian window, valid region only), beside a flat image. For tuning seeds during development;
+the figures the README reports come from `afterglow assess` on validation seeds.
+
+    /usr/bin/python3 learned/evaluate.py CHECKPOINT.pt FILE.npz ...
+"""
+import sys
+import os
+
+import numpy as np
+import torch
+
+sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
+import model as ember  # noqa: E402
+import voxel  # noqa: E402
+from skimage.metrics import structural_similarity  # noqa: E402
+
+
+def score(truth, recon):
+    """SSIM as the node's ImageQuality: affine fit, then truth range to [0, 1] (scikit-image)."""
+    r = recon.astype(np.float64).ravel()
+    t = truth.astype(np.float64).ravel()
+    var = r.var()
+    a = ((r - r.mean()) * (t - t.mean())).mean() / var if var > 0 else 0.0
+    fitted = a * (recon - r.mean()) + t.mean()
+    lo, hi = truth.min(), truth.max()
+    rng = hi - lo if hi > lo else 1.0
+    tt, ff = (truth - lo) / rng, (fitted - lo) / rng
+    _, full = structural_similarity(tt, ff, data_range=1.0, gaussian_weights=True, sigma=1.5,
+                                    use_sample_covariance=False, full=True)
+    return full[5:-5, 5:-5].mean()
+
+
+def evaluate(net, path, eval_every=4, warmup_windows=20):
+    d = np.load(path)
+    t = d["t"]
+    ends = d["frame_times"]
+    h, w = d["frames"].shape[1:]
+    hp = -(-h // ember.PAD_MULTIPLE) * ember.PAD_MULTIPLE
+    wp = -(-w // ember.PAD_MULTIPLE) * ember.PAD_MULTIPLE
+    period = int(ends[0])
+    starts, stops = voxel.windows(t, ends)
+    state = ember.zero_state(1, hp, wp)
+    ours, flat = [], []
+    with torch.no_grad():
+        for k in range(len(ends)):
+            s, e = starts[k], stops[k]
+            g = voxel.normalise(voxel.bin_events(d["x"][s:e], d["y"][s:e], t[s:e], d["p"][s:e],
+                                                 ends[k] - period, ends[k], ember.BINS, h, w))
+            padded = np.zeros((1, ember.BINS, hp, wp), dtype=np.float32)
+            padded[0, :, :h, :w] = g
+            image, state = net(torch.from_numpy(padded), state)
+            if k >= warmup_windows and (k + 1) % eval_every == 0:
+                truth = d["frames"][k].astype(np.float64)
+                ours.append(score(truth, image[0, 0, :h, :w].numpy().astype(np.float64)))
+                flat.append(score(truth, np.zeros_like(truth)))
+    return float(np.mean(ours)), float(np.mean(flat))
+
+
+def main():
+    torch.set_num_threads(2)
+    net = ember.Ember()
+    net.load_state_dict(torch.load(sys.argv[1]))
+    net.eval()
+    for path in sys.argv[2:]:
+        ours, flat = evaluate(net, path)
+        print(f"{os.path.basename(path):40s} ember {ours:.3f}  flat {flat:.3f}  gain {ours - flat:+.3f}", flush=True)
+
+
+if __name__ == "__main__":
+    main()
