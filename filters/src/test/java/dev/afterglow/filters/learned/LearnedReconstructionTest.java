@@ -14,10 +14,14 @@ import java.io.IOException;
 import java.io.InputStream;
 import java.lang.management.ManagementFactory;
 import java.nio.file.Path;
+import java.util.ArrayList;
+import java.util.List;
 import java.util.Map;
 import java.util.SplittableRandom;
 import org.junit.jupiter.api.Test;
 import org.junit.jupiter.api.io.TempDir;
+import org.junit.jupiter.params.ParameterizedTest;
+import org.junit.jupiter.params.provider.MethodSource;
 
 /**
  * The learned-recon stage against outputs computed outside Java and ONNX Runtime, and its
@@ -28,19 +32,27 @@ class LearnedReconstructionTest {
     Path dir;
 
     /**
-     * The fixture of {@code learned_test_models.py}: numpy computed the voxel grids (the contract's
-     * rule), the normalisation and the tiny network's operators by hand, following the stage's
-     * window rules (first window at the first event, inference when T >= t1 or no output yet,
-     * events past t1 clamped, repeats in between). The Java path (voxel grid, padding to 16x16,
-     * ONNX Runtime, state carried, cropping to 13x10) must give the same log images within 1e-4 (the
-     * tolerance the issue sets for the trained model's fixtures), inferring at the same readouts.
+     * Every fixture {@code NAME.fixture*.npz} in the test resources' {@code learned} folder, run
+     * through the model {@code NAME.onnx} beside it, or the shipped model for {@code ember-1}.
+     * {@code tiny-contract.fixture.npz} comes from {@code learned_test_models.py}: numpy computed the
+     * voxel grids (the contract's rule), the normalisation and the tiny network's operators by hand,
+     * following the stage's window rules (first window at the first event, inference when T >= t1 or
+     * no output yet, events past t1 clamped, repeats in between). Fixtures of the trained model come
+     * from its training script (PyTorch). The Java path (voxel grid, padding, ONNX Runtime, state
+     * carried, cropping) must give the same log images within 1e-4 (absolute, log intensity: the
+     * issue's tolerance), inferring at the same readouts.
      */
-    @Test
-    void shouldReproduceTheNumpyFixtureOfTheTinyModel() throws IOException {
+    @ParameterizedTest
+    @MethodSource("fixtures")
+    void shouldReproduceTheFixturesOfTheModelsTrainingFramework(String fixture) throws IOException {
         Map<String, Npz.Array> f;
-        try (InputStream in = getClass().getResourceAsStream(TestModels.FOLDER + "tiny-contract.fixture.npz")) {
+        try (InputStream in = getClass().getResourceAsStream(TestModels.FOLDER + fixture)) {
             f = Npz.read(in);
         }
+        String name = fixture.substring(0, fixture.indexOf(".fixture"));
+        String model = getClass().getResource(TestModels.FOLDER + name + ".onnx") != null
+                && !(TestModels.FOLDER + name + ".onnx").equals(LearnedReconstruction.BUILTIN_RESOURCE)
+                ? TestModels.copy(name + ".onnx", dir).toString() : LearnedReconstruction.BUILTIN;
         int w = (int) f.get("sensor").at(0);
         int h = (int) f.get("sensor").at(1);
         long periodUs = (long) f.get("period_us").at(0);
@@ -49,8 +61,8 @@ class LearnedReconstructionTest {
         float[] expected = f.get("log_image").floats();
         Npz.Array inferred = f.get("inferred");
         int n = (int) events.shape()[0];
-        try (LearnedReconstruction stage = LearnedReconstruction.open(TestModels.tiny(dir).toString(), periodUs, 1, w, h)) {
-            assertEquals(new ModelContract(5, 4, 4, 8, "tiny-contract"), stage.contract());
+        try (LearnedReconstruction stage = LearnedReconstruction.open(model, periodUs, 1, w, h)) {
+            assertEquals(name, stage.contract().modelName(), "the fixture's model");
             SplittableRandom r = new SplittableRandom(1);
             EventBatch batch = new EventBatch(n);
             float[] out = new float[w * h];
@@ -77,12 +89,23 @@ class LearnedReconstructionTest {
                 for (int i = 0; i < out.length; i++) {
                     worst = Math.max(worst, Math.abs(out[i] - expected[k * w * h + i]));
                 }
-                assertTrue(worst <= 1e-4, "readout " + T + ": worst difference " + worst);
+                assertTrue(worst <= 1e-4, fixture + ", readout " + T + ": worst difference " + worst);
             }
             assertEquals(inferences, stage.inferences());
             assertTrue(inferences >= 3, "several inferences, so the carried state matters: " + inferences);
-            assertTrue(stage.modelIdentity().matches("tiny-contract@[0-9a-f]{12}"), stage.modelIdentity());
+            assertTrue(stage.modelIdentity().matches(java.util.regex.Pattern.quote(name) + "@[0-9a-f]{12}"), stage.modelIdentity());
         }
+    }
+
+    /** The fixture files of the test resources' learned folder (at least the tiny model's). */
+    static List<String> fixtures() throws IOException, java.net.URISyntaxException {
+        Path folder = Path.of(LearnedReconstructionTest.class.getResource(TestModels.FOLDER).toURI());
+        List<String> names = new ArrayList<>();
+        try (var files = java.nio.file.Files.list(folder)) {
+            files.map(p -> p.getFileName().toString()).filter(s -> s.matches(".+\\.fixture.*\\.npz")).sorted().forEach(names::add);
+        }
+        assertTrue(names.contains("tiny-contract.fixture.npz"), "fixtures found: " + names);
+        return names;
     }
 
     /** Runs a seeded stream through a fresh stage, reading out every 4 ms; returns every output's bits. */
