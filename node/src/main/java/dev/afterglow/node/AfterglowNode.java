@@ -92,7 +92,15 @@ public final class AfterglowNode implements AutoCloseable {
         this.serveGroup = new MultiThreadIoEventLoopGroup(1, NioIoHandler.newFactory());
         this.pipelineGroup = new DefaultEventLoopGroup(config.limits.pipelineThreads);
         this.publisher = new FramePublisher(clock, nodeCounters, config.limits.frameBufferBytes);
-        this.registry = new SensorRegistry(config, pipelineGroup, publisher, clock, nodeCounters);
+        try {
+            this.registry = new SensorRegistry(config, pipelineGroup, publisher, clock, nodeCounters);
+        } catch (RuntimeException e) {
+            // e.g. a learned reconstruction's model refused: no thread of this node may outlive the error
+            ingestGroup.shutdownGracefully(0, 1, java.util.concurrent.TimeUnit.SECONDS);
+            serveGroup.shutdownGracefully(0, 1, java.util.concurrent.TimeUnit.SECONDS);
+            pipelineGroup.shutdownGracefully(0, 1, java.util.concurrent.TimeUnit.SECONDS);
+            throw e;
+        }
         this.meters = new NodeMeters(meterRegistry, registry, publisher, nodeCounters);
         this.liveViews = new LiveViews(registry, clock);
         this.watch = new PipelineWatchdog(clock, config.limits.watchdogStallMs * 1_000_000L);

@@ -103,4 +103,23 @@ class AfterglowCliTest {
         assertTrue(captured.toString(StandardCharsets.UTF_8).startsWith("refractory(period=2000us) | high-pass(cutoff=6.283185307179586rad/s, contrast=0.2)"),
                 captured.toString(StandardCharsets.UTF_8));
     }
+
+    @Test
+    void stagesShouldCheckALearnedModelForASensorSize(@org.junit.jupiter.api.io.TempDir java.nio.file.Path dir) {
+        java.nio.file.Path model = dev.afterglow.filters.learned.TestModels.tiny(dir);
+        PrintStream saved = System.out;
+        ByteArrayOutputStream captured = new ByteArrayOutputStream();
+        try {
+            System.setOut(new PrintStream(captured, true, StandardCharsets.UTF_8));
+            assertEquals(0, run(new StringWriter(), "stages", "--size", "346x260", "learned-recon(model=" + model + ")"));
+        } finally {
+            System.setOut(saved);
+        }
+        String out = captured.toString(StandardCharsets.UTF_8);
+        assertTrue(out.contains("model tiny-contract@") && out.contains("follows the contract at 346x260"), out);
+        StringWriter err = new StringWriter();
+        java.nio.file.Path broken = dev.afterglow.filters.learned.TestModels.copy("refused/bins-mismatch.onnx", dir);
+        assertEquals(2, run(err, "stages", "--size", "346x260", "learned-recon(model=" + broken + ")"));
+        assertTrue(err.toString().contains("input `voxels` is [1, 3, -1, -1]; expected [1, 5, H, W]"), err.toString());
+    }
 }

@@ -10,8 +10,11 @@ import java.util.List;
  * A built chain for one sensor: denoise stages followed by a reconstruction, all state allocated
  * here. Threading: one owner thread runs {@link #process} and the readout; counters may be read
  * from anywhere.
+ *
+ * <p>A stage may hold resources outside the heap (the learned reconstruction's ONNX Runtime
+ * session): {@link #close()} releases them, so close a chain that is replaced or dropped.
  */
-public final class Chain {
+public final class Chain implements AutoCloseable {
     private final ChainSpec spec;
     private final int width;
     private final int height;
@@ -33,10 +36,42 @@ public final class Chain {
         }
         List<StageSpec> specs = spec.stages();
         EventStage[] built = new EventStage[specs.size()];
-        for (int i = 0; i < built.length; i++) {
-            built[i] = specs.get(i).kind().build(specs.get(i), width, height);
+        try {
+            for (int i = 0; i < built.length; i++) {
+                built[i] = specs.get(i).kind().build(specs.get(i), width, height);
+            }
+        } catch (RuntimeException e) {
+            closeAll(built);
+            throw e;
         }
         return new Chain(spec, width, height, built);
+    }
+
+    /**
+     * Releases what the stages hold outside the heap (stages that are {@link AutoCloseable}).
+     * Call on the owner thread, or once the owner no longer uses the chain. Idempotent.
+     */
+    @Override
+    public void close() {
+        closeAll(stages);
+    }
+
+    private static void closeAll(EventStage[] stages) {
+        RuntimeException first = null;
+        for (EventStage s : stages) {
+            if (s instanceof AutoCloseable c) {
+                try {
+                    c.close();
+                } catch (Exception e) {
+                    if (first == null) {
+                        first = e instanceof RuntimeException r ? r : new IllegalStateException(e);
+                    }
+                }
+            }
+        }
+        if (first != null) {
+            throw first;
+        }
     }
 
     /** Parses {@code description} and builds it. */

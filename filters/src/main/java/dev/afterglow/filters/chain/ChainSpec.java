@@ -15,8 +15,11 @@ import java.util.regex.Pattern;
  * <pre>
  * chain  := stage ( "|" stage )*
  * stage  := name [ "(" [ param ( "," param )* ] ")" ]
- * param  := key "=" number [ unit ]
+ * param  := key "=" ( number [ unit ] | text )
  * </pre>
+ *
+ * A text value (a file path, for example) is written bare or in double quotes; see
+ * {@link TextValue}. Separators inside quotes belong to the text.
  */
 public final class ChainSpec {
     private static final Pattern NAME = Pattern.compile("[a-z][a-z-]*");
@@ -62,7 +65,13 @@ public final class ChainSpec {
         int start = 0;
         for (int i = 0; i < text.length(); i++) {
             char c = text.charAt(i);
-            if (c == '(') {
+            if (c == '"') {
+                int end = TextValue.skipQuoted(text, i);
+                if (end < 0) {
+                    throw new ChainSpecException("chain: missing closing '\"' for the quote at position " + i + " in \"" + text.trim() + "\"");
+                }
+                i = end - 1; // separators inside quotes are text
+            } else if (c == '(') {
                 depth++;
             } else if (c == ')') {
                 depth--;
@@ -95,21 +104,40 @@ public final class ChainSpec {
             throw new ChainSpecException("chain: unknown stage \"" + name + "\"; expected one of " + StageKind.labels());
         }
         Map<String, Double> given = new HashMap<>();
+        Map<String, String> givenTexts = new HashMap<>();
         if (open >= 0) {
             if (!text.endsWith(")")) {
                 throw new ChainSpecException(name + ": text after ')' in \"" + text + "\"");
             }
             String inner = text.substring(open + 1, text.length() - 1).trim();
             if (!inner.isEmpty()) {
-                for (String assignment : inner.split(",")) {
-                    parseParam(kind, assignment.trim(), given);
+                for (String assignment : splitParams(inner)) {
+                    parseParam(kind, assignment.trim(), given, givenTexts);
                 }
             }
         }
-        return new StageSpec(kind, given);
+        return new StageSpec(kind, given, givenTexts);
     }
 
-    private static void parseParam(StageKind kind, String assignment, Map<String, Double> given) {
+    /** Splits at commas outside double quotes. */
+    private static List<String> splitParams(String inner) {
+        List<String> parts = new ArrayList<>();
+        int start = 0;
+        for (int i = 0; i < inner.length(); i++) {
+            char c = inner.charAt(i);
+            if (c == '"') {
+                int end = TextValue.skipQuoted(inner, i);
+                i = (end < 0 ? inner.length() : end) - 1;
+            } else if (c == ',') {
+                parts.add(inner.substring(start, i));
+                start = i + 1;
+            }
+        }
+        parts.add(inner.substring(start));
+        return parts;
+    }
+
+    private static void parseParam(StageKind kind, String assignment, Map<String, Double> given, Map<String, String> givenTexts) {
         int eq = assignment.indexOf('=');
         if (eq < 0) {
             throw new ChainSpecException(kind.label() + ": expected key=value, got \"" + assignment + "\"");
@@ -128,9 +156,17 @@ public final class ChainSpec {
             kind.params().forEach(p -> keys.add(p.key()));
             throw new ChainSpecException(setting + "=" + valueText + ": unknown parameter; expected one of " + keys);
         }
-        if (given.containsKey(key)) {
+        if (given.containsKey(key) || givenTexts.containsKey(key)) {
             throw new ChainSpecException(setting + "=" + valueText + ": given twice; at most once per stage");
         }
+        if (param.isText()) {
+            givenTexts.put(key, TextValue.parse(setting, valueText));
+        } else {
+            given.put(key, parseNumber(param, setting, valueText));
+        }
+    }
+
+    private static double parseNumber(Param param, String setting, String valueText) {
         Matcher m = VALUE.matcher(valueText);
         if (!m.matches()) {
             throw new ChainSpecException(setting + "=" + valueText + ": not a number with unit (" + param.unit().accepted + ")");
@@ -140,7 +176,7 @@ public final class ChainSpec {
         if (suffix.isEmpty() && (param.unit() == Unit.TIME || param.unit() == Unit.FREQUENCY)) {
             throw new ChainSpecException(setting + "=" + valueText + ": needs a unit (" + param.unit().accepted + ")");
         }
-        given.put(key, param.unit().convert(setting, valueText, number, suffix));
+        return param.unit().convert(setting, valueText, number, suffix);
     }
 
     private static void checkOrder(List<StageSpec> stages) {
@@ -155,7 +191,7 @@ public final class ChainSpec {
                         + (i + 1) + " of " + stages.size() + ")");
             }
             if (!k.reconstruction() && last) {
-                throw new ChainSpecException("chain: the last stage must reconstruct (direct-integration, high-pass or complementary); found "
+                throw new ChainSpecException("chain: the last stage must reconstruct (" + StageKind.reconstructionLabels() + "); found "
                         + k.label());
             }
         }
@@ -181,14 +217,14 @@ public final class ChainSpec {
     public ChainSpec withText(int index, String key, String valueText) {
         StageSpec old = stages.get(index);
         old.requireKey(key);
-        String current = old.toString();
-        Matcher m = Pattern.compile("([(,]\\s*)" + Pattern.quote(key) + "=[^,)]*").matcher(current);
-        if (!m.find()) {
-            throw new IllegalStateException("canonical text " + current + " lacks " + key);
-        }
-        String text = current.substring(0, m.start()) + m.group(1) + key + "=" + valueText.strip() + current.substring(m.end());
+        Param param = old.kind().param(key);
+        String setting = old.kind().label() + "." + key;
+        String written = valueText.strip();
+        StageSpec changed = param.isText()
+                ? old.withText(key, TextValue.parse(setting, written))
+                : old.with(key, parseNumber(param, setting, written));
         List<StageSpec> copy = new ArrayList<>(stages);
-        copy.set(index, parseStage(text));
+        copy.set(index, changed);
         return new ChainSpec(copy);
     }
 

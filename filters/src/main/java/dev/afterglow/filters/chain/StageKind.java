@@ -5,6 +5,7 @@ import dev.afterglow.filters.denoise.BackgroundActivityFilter;
 import dev.afterglow.filters.denoise.HotPixelFilter;
 import dev.afterglow.filters.denoise.PatchSupportFilter;
 import dev.afterglow.filters.denoise.RefractoryFilter;
+import dev.afterglow.filters.learned.LearnedReconstruction;
 import dev.afterglow.filters.recon.ComplementaryFilter;
 import dev.afterglow.filters.recon.FrameNoiseModel;
 import dev.afterglow.filters.recon.KalmanFusion;
@@ -116,6 +117,22 @@ public enum StageKind {
                     s.get("learn-noise") == 1, s.toString());
         }
     },
+    /**
+     * {@link LearnedReconstruction}: a recurrent network (an ONNX model) run on event voxel grids;
+     * the model is loaded and checked against the contract when the chain is built.
+     */
+    LEARNED_RECON("learned-recon", true, List.of(
+            Param.text("model", LearnedReconstruction.BUILTIN,
+                    "ONNX model file following the model contract, or builtin (the model shipped with the node)"),
+            new Param("rate", Unit.FREQUENCY, 2 * Math.PI * 20, 2 * Math.PI * 0.1, 2 * Math.PI * 1000,
+                    "inferences per second (Hz accepted); frames in between repeat the last output"),
+            new Param("threads", Unit.INTEGER, 2, 1, 64, "ONNX Runtime intra-op threads (the calling thread included)"))) {
+        @Override
+        EventStage build(StageSpec s, int w, int h) {
+            long periodUs = Math.max(1, Math.round(2 * Math.PI * 1e6 / s.get("rate")));
+            return LearnedReconstruction.open(s.text("model"), periodUs, (int) s.get("threads"), w, h);
+        }
+    },
     /** {@link ComplementaryFilter}. */
     COMPLEMENTARY("complementary", true, List.of(
             new Param("cutoff", Unit.FREQUENCY, 5, 1e-3, 1e4, "cut-off a where the sensor frame is well exposed"),
@@ -166,6 +183,16 @@ public enum StageKind {
         return params;
     }
 
+    /** The parameter called {@code key}, or null. */
+    Param param(String key) {
+        for (Param p : params) {
+            if (p.key().equals(key)) {
+                return p;
+            }
+        }
+        return null;
+    }
+
     /** Builds the stage for a sensor of the given size. */
     abstract EventStage build(StageSpec spec, int width, int height);
 
@@ -195,10 +222,26 @@ public enum StageKind {
         return b.toString();
     }
 
+    /** Labels of the stages that reconstruct, for error messages. */
+    static String reconstructionLabels() {
+        StringBuilder b = new StringBuilder();
+        for (StageKind k : values()) {
+            if (k.reconstruction) {
+                b.append(b.length() > 0 ? ", " : "").append(k.label);
+            }
+        }
+        return b.toString();
+    }
+
     /** One line per parameter with unit, default and limits, for help texts. */
     public String help() {
         StringBuilder b = new StringBuilder(label).append('\n');
         for (Param p : params) {
+            if (p.isText()) {
+                b.append("  ").append(p.key()).append(": ").append(p.help())
+                        .append(" (text, default ").append(TextValue.format(p.defaultText())).append(")\n");
+                continue;
+            }
             b.append("  ").append(p.key()).append(": ").append(p.help())
                     .append(" (default ").append(p.format(p.defaultValue()))
                     .append(", ").append(p.format(p.min())).append(" .. ").append(p.format(p.max())).append(")\n");

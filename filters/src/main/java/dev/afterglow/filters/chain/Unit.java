@@ -9,7 +9,9 @@ enum Unit {
     /** A plain number without unit. */
     NUMBER("no unit", ""),
     /** A whole number without unit. */
-    INTEGER("no unit", "");
+    INTEGER("no unit", ""),
+    /** Text such as a file path: bare, or in double quotes when it holds other characters (see {@link TextValue}). */
+    TEXT("text, in double quotes if it holds characters other than " + TextValue.BARE_CHARACTERS, "");
 
     final String accepted;
     final String canonical;

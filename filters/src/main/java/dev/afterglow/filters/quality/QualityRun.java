@@ -318,6 +318,11 @@ public final class QualityRun {
                 nextEval += s.evaluationIntervalUs();
             }
         }
+        for (Chain c : chains) {
+            if (c != null) {
+                c.close(); // a learned reconstruction's native session
+            }
+        }
         // Frame exposure is simulated inside step(); sensorNs includes it.
         // Every method saw the same events: count the emitted ones by label from the first.
         MethodResult any = results[0];

@@ -26,4 +26,13 @@ public interface Reconstruction extends EventStage {
      * after the events up to {@code timeUs} and before later ones.
      */
     void readLog(long timeUs, float[] out);
+
+    /**
+     * Tells the stage that a frame time passed without a readout (nobody was watching). Stages
+     * whose state does not depend on readouts ignore it (the default); one that works in windows
+     * between readouts (the learned reconstruction) starts a new window here, so its next window
+     * does not pile up everything since its last readout.
+     */
+    default void readoutSkipped(long timeUs) {
+    }
 }

@@ -28,10 +28,10 @@ import net.jqwik.api.Provide;
  */
 @FuzzTarget
 class ChainSpecFuzzTest {
-    private static final String ALPHABET = "abcdefghiklmnoprstuvwyzHz-()|,=.+-eE0123456789 \t/";
+    private static final String ALPHABET = "abcdefghiklmnoprstuvwyzHz-()|,=.+-eE0123456789 \t/\"\\";
 
     /** One stage as written, with the values an independent conversion expects (canonical units). */
-    record Written(StageKind kind, String text, Map<String, Double> values) {
+    record Written(StageKind kind, String text, Map<String, Double> values, Map<String, String> texts) {
     }
 
     /** A whole description as written; {@code stages} is empty unless every stage was written well. */
@@ -75,6 +75,10 @@ class ChainSpecFuzzTest {
             StageSpec s = spec.stages().get(i);
             assertEquals(w.kind(), s.kind());
             for (Param p : w.kind().params()) {
+                if (p.isText()) {
+                    assertEquals(w.texts().getOrDefault(p.key(), p.defaultText()), s.text(p.key()), w.text() + " " + p.key());
+                    continue;
+                }
                 double expected = w.values().getOrDefault(p.key(), p.defaultValue());
                 assertEquals(expected, s.get(p.key()), Math.abs(expected) * 1e-12, w.text() + " " + p.key());
             }
@@ -89,6 +93,12 @@ class ChainSpecFuzzTest {
             StageKind kind = stages.get(i).kind();
             assertEquals(i == stages.size() - 1, kind.reconstruction(), "only the last stage reconstructs: " + spec);
             for (Param p : kind.params()) {
+                if (p.isText()) {
+                    String t = stages.get(i).text(p.key());
+                    assertTrue(!t.isEmpty() && t.chars().noneMatch(c -> c < 0x20 || c == 0x7f),
+                            kind.label() + "." + p.key() + " is non-empty text without control characters: " + t);
+                    continue;
+                }
                 double v = stages.get(i).get(p.key());
                 assertTrue(Double.isFinite(v) && v >= p.min() && v <= p.max(),
                         kind.label() + "." + p.key() + "=" + v + " outside [" + p.min() + ", " + p.max() + "]");
@@ -122,6 +132,9 @@ class ChainSpecFuzzTest {
             }
             Map<String, Double> v = new LinkedHashMap<>();
             for (Param p : w.kind().params()) {
+                if (p.isText()) {
+                    continue; // stage() writes only valid text
+                }
                 double x = w.values().getOrDefault(p.key(), p.defaultValue());
                 v.put(p.key(), x);
                 if (p.unit() == Unit.INTEGER && x != Math.rint(x)) {
@@ -212,10 +225,17 @@ class ChainSpecFuzzTest {
     private static Written stage(Random r, StageKind kind) {
         String sp = space(r);
         Map<String, Double> values = new LinkedHashMap<>();
+        Map<String, String> texts = new LinkedHashMap<>();
         List<String> parts = new ArrayList<>();
         for (Param p : kind.params()) {
             if (r.nextInt(3) == 0) {
                 continue; // left to its default
+            }
+            if (p.isText()) {
+                String value = textValue(r);
+                parts.add(sp + p.key() + sp + "=" + sp + written(r, value) + sp);
+                texts.put(p.key(), value);
+                continue;
             }
             Suffix u = FuzzInputs.oneOf(r, suffixes(p.unit()).toArray(Suffix[]::new));
             int form = r.nextInt(10);
@@ -228,7 +248,25 @@ class ChainSpecFuzzTest {
         if (!parts.isEmpty() || r.nextBoolean()) {
             b.append(sp).append('(').append(String.join(",", parts)).append(')');
         }
-        return new Written(kind, b.toString(), values);
+        return new Written(kind, b.toString(), values, texts);
+    }
+
+    /** Text a user might give: non-empty, any printable character incl. separators, quotes and backslashes. */
+    private static String textValue(Random r) {
+        return "m" + FuzzInputs.textFrom(r, r.nextBoolean() ? "abz09._/-~+:@%" : "ab09./ ,()|=\"\\'\u00e9", 20);
+    }
+
+    /**
+     * The text as a user writes it, by the documented rule and not the parser's code: bare when
+     * every character is one of A-Z a-z 0-9 . _ / ~ + : @ % - (and sometimes quoted anyway),
+     * otherwise in double quotes with a backslash before each quote and backslash.
+     */
+    private static String written(Random r, String value) {
+        boolean bare = value.chars().allMatch(c -> c < 128 && (Character.isLetterOrDigit(c) || "._/~+:@%-".indexOf(c) >= 0));
+        if (bare && r.nextBoolean()) {
+            return value;
+        }
+        return "\"" + value.replace("\\", "\\\\").replace("\"", "\\\"") + "\"";
     }
 
     /** A unit written after a number and what it multiplies by to reach the canonical unit. */
@@ -241,6 +279,7 @@ class ChainSpecFuzzTest {
             case TIME -> List.of(new Suffix("us", 1), new Suffix("ms", 1e3), new Suffix("s", 1e6));
             case FREQUENCY -> List.of(new Suffix("rad/s", 1), new Suffix("Hz", 2 * Math.PI));
             case NUMBER, INTEGER -> List.of(new Suffix("", 1));
+            case TEXT -> throw new IllegalArgumentException("text has no units");
         };
     }
 

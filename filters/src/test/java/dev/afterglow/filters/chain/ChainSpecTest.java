@@ -138,7 +138,12 @@ class ChainSpecTest {
 
     private static StageSpec randomStage(StageKind kind, SplittableRandom rnd) {
         java.util.Map<String, Double> values = new java.util.HashMap<>();
+        java.util.Map<String, String> texts = new java.util.HashMap<>();
         for (Param p : kind.params()) {
+            if (p.isText()) {
+                texts.put(p.key(), TextParameterTest.randomText(rnd));
+                continue;
+            }
             double v;
             if (p.unit() == Unit.INTEGER) {
                 v = (double) ((long) p.min() + rnd.nextLong((long) (p.max() - p.min()) + 1));
@@ -157,7 +162,7 @@ class ChainSpecTest {
             values.put("low-cutoff", Math.min(values.get("low-cutoff"), values.get("cutoff")));
             values.put("dark", Math.min(values.get("dark"), values.get("saturated") * 0.99));
         }
-        return new StageSpec(kind, values);
+        return new StageSpec(kind, values, texts);
     }
 
     private static void assertRejected(String text, String... parts) {
@@ -247,6 +252,9 @@ class ChainSpecTest {
         assertEquals(spec, ChainSpec.parse(spec.toString()), spec.toString());
         for (StageSpec stage : spec.stages()) {
             for (Param p : stage.kind().params()) {
+                if (p.isText()) {
+                    continue;
+                }
                 assertEquals(0, Double.compare(Math.abs(stage.get(p.key())), stage.get(p.key())), p.key() + " is not -0.0");
             }
         }

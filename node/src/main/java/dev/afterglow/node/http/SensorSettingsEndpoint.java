@@ -6,7 +6,9 @@ import com.fasterxml.jackson.databind.node.ArrayNode;
 import com.fasterxml.jackson.databind.node.ObjectNode;
 import dev.afterglow.filters.chain.ChainSpec;
 import dev.afterglow.filters.chain.ChainSpecException;
+import dev.afterglow.filters.chain.StageKind;
 import dev.afterglow.filters.chain.StageSpec;
+import dev.afterglow.filters.learned.LearnedReconstruction;
 import dev.afterglow.node.config.ConfigException;
 import dev.afterglow.node.config.ControlConfig;
 import dev.afterglow.node.config.SensorConfig;
@@ -122,7 +124,13 @@ public final class SensorSettingsEndpoint {
             return done(change.refused());
         }
         ObjectNode answer = settings(change.next(), change.chainChanged());
-        return pipeline.reconfigure(change.next())
+        CompletableFuture<Void> applied;
+        try {
+            applied = pipeline.reconfigure(change.next()); // builds the chain: a learned model is loaded and checked here
+        } catch (ChainSpecException e) {
+            return done(Reply.text(HttpResponseStatus.BAD_REQUEST, "chain: " + e.getMessage()));
+        }
+        return applied
                 .orTimeout(APPLY_TIMEOUT_SECONDS, TimeUnit.SECONDS)
                 .handle((ok, error) -> error == null
                         ? jsonReply(HttpResponseStatus.OK, answer)
@@ -152,12 +160,35 @@ public final class SensorSettingsEndpoint {
             }
             SensorConfig next = apply(current, request);
             next.validate(sensorId);
+            checkModelFiles(current.chainSpec(), next.chainSpec());
             return new Change(next, !next.chainSpec().equals(current.chainSpec()), null);
         } catch (IOException e) {
             String why = e instanceof com.fasterxml.jackson.core.JsonProcessingException j ? j.getOriginalMessage() : e.toString();
             return Change.refuse("the body is not valid JSON: " + why);
         } catch (ConfigException | ChainSpecException e) {
             return Change.refuse(e.getMessage());
+        }
+    }
+
+    /**
+     * Over HTTP a learned reconstruction may use the shipped model or a model file already in
+     * effect for this sensor, never a new path: the node would otherwise read and parse any file a
+     * client names. New model files are set in the node's configuration.
+     */
+    private static void checkModelFiles(ChainSpec current, ChainSpec next) {
+        Set<String> inEffect = new java.util.HashSet<>();
+        inEffect.add(LearnedReconstruction.BUILTIN);
+        for (StageSpec s : current.stages()) {
+            if (s.kind() == StageKind.LEARNED_RECON) {
+                inEffect.add(s.text("model"));
+            }
+        }
+        for (StageSpec s : next.stages()) {
+            if (s.kind() == StageKind.LEARNED_RECON && !inEffect.contains(s.text("model"))) {
+                throw new ConfigException("learned-recon.model=" + s.text("model") + ": over HTTP only builtin or a model "
+                        + "file already in effect for this sensor " + new java.util.TreeSet<>(inEffect)
+                        + "; set other model files in the node's configuration");
+            }
         }
     }
 

@@ -8,6 +8,7 @@ import dev.afterglow.filters.codec.DecodeResult;
 import dev.afterglow.filters.codec.EventPacketCodec;
 import dev.afterglow.filters.readout.ToneMapper;
 import dev.afterglow.filters.recon.FrameFusion;
+import dev.afterglow.filters.recon.InferringReconstruction;
 import dev.afterglow.metrics.LatencyRecorder;
 import dev.afterglow.metrics.StageTimers;
 import dev.afterglow.node.config.SensorConfig;
@@ -118,6 +119,7 @@ public final class SensorPipeline {
     private final LatencyRecorder readoutDuration = new LatencyRecorder();
     private final LatencyRecorder arrivalToApplied = new LatencyRecorder();
     private final LatencyRecorder readoutToSocket = LatencyRecorder.forConcurrentWriters();
+    private final LatencyRecorder inferenceDuration = new LatencyRecorder();
     private volatile long lagNanos;
     private final LiveTap live;
 
@@ -132,6 +134,8 @@ public final class SensorPipeline {
      * packets queued behind it.
      */
     private long workMeanUs;
+    /** Mean time of a readout (moving average over ~8 frames); a learned reconstruction's inferences make it large. */
+    private long readoutMeanNanos;
     private double rateHz;
 
     private boolean scheduleStarted;
@@ -187,7 +191,11 @@ public final class SensorPipeline {
     private void applyConfig(SensorConfig c, Chain built) {
         this.config = c;
         if (built != chain) {
+            Chain old = chain;
             this.chain = built;
+            if (old != null) {
+                old.close(); // a learned reconstruction's native session goes with it
+            }
             this.stageTimers = new StageTimers(built);
             this.stageInAtFrame = new long[built.stages().size()];
             this.stageOutAtFrame = new long[built.stages().size()];
@@ -260,7 +268,11 @@ public final class SensorPipeline {
         CompletableFuture<Void> applied = new CompletableFuture<>();
         execute(() -> {
             try {
-                applyConfig(next, next.chainSpec().equals(chain.spec()) ? chain : fresh);
+                boolean same = next.chainSpec().equals(chain.spec());
+                applyConfig(next, same ? chain : fresh);
+                if (same) {
+                    fresh.close();
+                }
                 applied.complete(null);
             } catch (RuntimeException e) {
                 applied.completeExceptionally(e);
@@ -298,15 +310,20 @@ public final class SensorPipeline {
         });
     }
 
-    /** Stops timers. */
+    /** Stops timers and releases the chain (on the pipeline thread, after the tasks already queued). */
     public void close() {
         connected = false;
-        loop.execute(() -> {
-            if (idleTimer != null) {
-                idleTimer.cancel(false);
-                idleTimer = null;
-            }
-        });
+        try {
+            loop.execute(() -> {
+                if (idleTimer != null) {
+                    idleTimer.cancel(false);
+                    idleTimer = null;
+                }
+                chain.close();
+            });
+        } catch (java.util.concurrent.RejectedExecutionException e) {
+            chain.close(); // the thread has stopped: nothing else uses the chain
+        }
     }
 
     /**
@@ -434,7 +451,10 @@ public final class SensorPipeline {
         lastPacketHostUs = arrivalUs;
         long nowUs = clock.monotonicNanos() / 1000;
         // Shed what could not be published within the budget: its age now plus the time processing takes.
-        if (nowUs - clockMapper.toHostUs(newest) > budgetUs - Math.min(budgetUs / 2, 2 * workMeanUs)) {
+        // The headroom also holds one readout (up to a quarter of the budget), so the frame a packet brings is
+        // still published within the budget when a readout is costly (a model inference).
+        long headroomUs = Math.min(budgetUs / 2, 2 * workMeanUs) + Math.min(budgetUs / 4, readoutMeanNanos / 1000);
+        if (nowUs - clockMapper.toHostUs(newest) > budgetUs - headroomUs) {
             counters.increment(NodeCounter.PACKETS_SHED_LATENCY);
             counters.add(NodeCounter.EVENTS_SHED_LATENCY, count);
             droppedSinceFrame += count;
@@ -556,6 +576,7 @@ public final class SensorPipeline {
 
     /** Applies the batch, publishing every frame whose time falls inside or before it. */
     private void applyWithFrames(EventBatch b) {
+        long packetNewestUs = b.timeBaseUs + b.maxT;
         EventBatch current = b;
         while (current.size > 0) {
             long newest = current.timeBaseUs + current.maxT;
@@ -571,7 +592,7 @@ public final class SensorPipeline {
             EventBatch rest = current == batch ? tail : batch;
             splitInto(current, split, rest);
             apply(current);
-            emitDueFrames(rest.timeBaseUs + rest.t[0]);
+            emitDueFrames(rest.timeBaseUs + rest.t[0], packetNewestUs);
             current = rest;
         }
     }
@@ -617,8 +638,17 @@ public final class SensorPipeline {
      * Publishes every grid frame with time <= {@code upToUs}; stale ones except the newest are
      * skipped. Stale frames are skipped by arithmetic, not one by one, so a long gap costs no more
      * than a short one: the loop only ever visits frames that are still within the budget.
+     *
+     * <p>{@code horizonUs} is the newest time the work at hand reaches (the packet's newest event).
+     * An earlier frame than the last one at or before it is skipped (counted) if reading it out
+     * would make it older than the budget when published, or if reading it and every frame after it
+     * would leave less than one readout of margin for that last frame (so under overload the newest
+     * frames are kept, not the oldest that are still in time). The last frame is read out unless it would leave older than the
+     * budget while another packet already waits (that packet brings a fresher newest frame). With
+     * cheap readouts this skips nothing that is fresh; with costly ones (a model inference at every
+     * frame) it keeps the frames that are published within the budget.
      */
-    private void emitDueFrames(long upToUs) {
+    private void emitDueFrames(long upToUs, long horizonUs) {
         if (nextFrameUs > upToUs) {
             return;
         }
@@ -632,11 +662,35 @@ public final class SensorPipeline {
             frameIndex = start;
             nextFrameUs = frameTime(frameIndex, rateHz);
         }
+        long lastOfHorizon = Math.max(lastDue, indexAtOrBefore(horizonUs, rateHz));
+        long lastOfHorizonUs = frameTime(lastOfHorizon, rateHz);
         while (frameIndex <= lastDue) {
-            readoutAndPublish(nextFrameUs, frameIndex);
+            // Reading this frame and every later one up to the last would age the last by one readout each,
+            // plus one readout of margin.
+            int readoutsToLast = (int) Math.min(1_000_000, lastOfHorizon - frameIndex + 2);
+            boolean skip = frameIndex < lastOfHorizon
+                    ? agesPastBudget(nextFrameUs, 1) || agesPastBudget(lastOfHorizonUs, readoutsToLast)
+                    : pending.get() > 0 && agesPastBudget(nextFrameUs, 1); // a fresher newest frame is queued
+            if (skip) {
+                counters.increment(NodeCounter.FRAMES_SKIPPED);
+            } else {
+                readoutAndPublish(nextFrameUs, frameIndex);
+            }
             frameIndex++;
             nextFrameUs = frameTime(frameIndex, rateHz);
         }
+    }
+
+    /**
+     * True if the frame at sensor time {@code frameUs} would be older than the budget once
+     * {@code readouts} more readouts (of the mean readout time) are done from now.
+     */
+    private boolean agesPastBudget(long frameUs, int readouts) {
+        if (!clockMapper.ready()) {
+            return false;
+        }
+        long publishUs = clock.monotonicNanos() / 1000 + readouts * (readoutMeanNanos / 1000L);
+        return publishUs - clockMapper.toHostUs(frameUs) > budgetUs;
     }
 
     /** The largest grid index whose frame time is at or before {@code timeUs}. */
@@ -659,7 +713,7 @@ public final class SensorPipeline {
         // Sensor time that has surely passed, allowing the budget for packets still in flight.
         long sensorNowUs = nowUs - clockMapper.offsetUs() - budgetUs;
         if (nextFrameUs <= sensorNowUs && nowUs - lastPacketHostUs > budgetUs) {
-            emitDueFrames(sensorNowUs);
+            emitDueFrames(sensorNowUs, sensorNowUs);
         }
     }
 
@@ -695,6 +749,7 @@ public final class SensorPipeline {
         if (!publisher.hasSubscribers(id) && !live.watching()) {
             // Nobody to show it to: skip the readout (the reconstruction's state does not depend on it).
             counters.increment(NodeCounter.FRAMES_UNREAD);
+            chain.reconstruction().readoutSkipped(frameTimeUs);
             markStageCounts();
             endWindow(frameTimeUs);
             return;
@@ -702,12 +757,33 @@ public final class SensorPipeline {
         long r0 = clock.monotonicNanos();
         chain.reconstruction().readLog(frameTimeUs, log);
         long readoutNanos = clock.monotonicNanos() - r0;
+        readoutMeanNanos += (readoutNanos - readoutMeanNanos) / 8;
+        InferringReconstruction model = chain.reconstruction() instanceof InferringReconstruction m ? m : null;
+        long inferenceNanos = model == null ? 0 : model.lastInferenceNanos();
+        if (model != null) {
+            if (inferenceNanos > 0) {
+                counters.increment(NodeCounter.INFERENCES);
+                inferenceDuration.recordNanos(inferenceNanos);
+            } else {
+                counters.increment(NodeCounter.INFERENCE_REPEATS);
+            }
+        }
+        if (gridIndex >= 0 && pending.get() > 0 && clockMapper.ready()
+                && clock.monotonicNanos() / 1000 - clockMapper.toHostUs(frameTimeUs) > budgetUs) {
+            // The readout itself (a stalled model inference) made this frame older than the budget, and a
+            // newer packet already waits with a fresher frame: drop this one instead of publishing it late.
+            counters.increment(NodeCounter.FRAMES_SKIPPED);
+            return;
+        }
         grayReadyFor = -1;
         long seq = ++sequence;
         Provenance.Builder p = Provenance.newBuilder()
                 .setEventsApplied(eventsSinceFrame)
                 .setEventsDropped(droppedSinceFrame)
                 .setLastSensorFrameUs(lastSensorFrameUs);
+        if (model != null) {
+            p.setModel(model.modelIdentity()).setInferenceNs(inferenceNanos);
+        }
         List<EventStage> stages = chain.stages();
         for (int i = 0; i < stages.size(); i++) {
             EventStage s = stages.get(i);
@@ -767,6 +843,11 @@ public final class SensorPipeline {
     /** Start of a frame's readout to its bytes written to a subscriber's socket; recorded per subscriber write. */
     public LatencyRecorder readoutToSocketLatency() {
         return readoutToSocket;
+    }
+
+    /** A learned reconstruction's model inference; recorded per inference (nothing for other chains). */
+    public LatencyRecorder inferenceLatency() {
+        return inferenceDuration;
     }
 
     /** Host arrival of a packet to its events applied by the chain; recorded per packet. */

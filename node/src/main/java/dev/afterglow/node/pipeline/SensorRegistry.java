@@ -1,6 +1,9 @@
 package dev.afterglow.node.pipeline;
 
+import dev.afterglow.filters.chain.Chain;
+import dev.afterglow.filters.chain.ChainSpecException;
 import dev.afterglow.node.config.AccessConfig;
+import dev.afterglow.node.config.ConfigException;
 import dev.afterglow.node.config.NodeConfig;
 import dev.afterglow.node.config.SensorConfig;
 import dev.afterglow.node.guard.ConnectionGuard;
@@ -60,16 +63,43 @@ public final class SensorRegistry {
         this.clock = clock;
         this.nodeCounters = nodeCounters;
         this.heapBudgetBytes = (long) (Runtime.getRuntime().maxMemory() * HEAP_SHARE_FOR_SENSORS);
-        for (SensorConfig s : config.sensors) {
-            create(s);
+        try {
+            if (config.acceptUnlistedSensors) {
+                checkDefaultChain(config.sensorDefaults);
+            }
+            for (SensorConfig s : config.sensors) {
+                create(s);
+            }
+        } catch (RuntimeException e) {
+            close();
+            throw e;
+        }
+    }
+
+    /**
+     * Builds the chain unlisted sensors get once, at a small size, so that what can only be found
+     * by building it (a learned reconstruction's model file: missing, unreadable, not following
+     * the contract) is a start-up error rather than a refusal of every sensor that says hello.
+     */
+    private static void checkDefaultChain(SensorConfig defaults) {
+        try {
+            Chain.build(defaults.chainSpec(), 64, 48).close();
+        } catch (ChainSpecException e) {
+            throw new ConfigException("sensor-defaults.chain: " + e.getMessage(), e);
         }
     }
 
     private SensorPipeline create(SensorConfig s) {
         Counters c = sensorCounters.computeIfAbsent(s.id, k -> new Counters());
-        SensorPipeline p = new SensorPipeline(s, pipelineGroup.next(), publisher, clock, c,
-                config.limits.maxPendingPackets, config.limits.maxPendingBytes, config.limits.maxEventsPerPacket,
-                config.limits.maxTimeAheadMs * 1000L);
+        SensorPipeline p;
+        try {
+            p = new SensorPipeline(s, pipelineGroup.next(), publisher, clock, c,
+                    config.limits.maxPendingPackets, config.limits.maxPendingBytes, config.limits.maxEventsPerPacket,
+                    config.limits.maxTimeAheadMs * 1000L);
+        } catch (ChainSpecException e) {
+            sensorCounters.remove(s.id, c);
+            throw new ConfigException("sensor " + s.id + ": chain: " + e.getMessage(), e);
+        }
         sensors.put(s.id, p);
         return p;
     }
@@ -110,6 +140,10 @@ public final class SensorRegistry {
             }
             try {
                 p = create(config.sensorDefaults.forSensor(id, (int) width, (int) height));
+            } catch (ConfigException e) {
+                nodeCounters.increment(NodeCounter.SENSORS_REFUSED);
+                OnceLog.warn("chain:" + id, "sensor " + id + ": refused: " + e.getMessage(), null);
+                return Attach.error("chain", "the node cannot build its chain for this sensor: " + e.getMessage());
             } catch (IllegalArgumentException e) {
                 nodeCounters.increment(NodeCounter.GEOMETRY_MISMATCH);
                 return Attach.error("bad-geometry", e.getMessage());

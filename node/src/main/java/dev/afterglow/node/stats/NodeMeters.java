@@ -30,6 +30,8 @@ public final class NodeMeters {
     public static final String READOUT_TO_SOCKET = "afterglow.latency.readout.to.socket";
     /** Host arrival of a packet to its events applied. */
     public static final String ARRIVAL_TO_APPLIED = "afterglow.latency.arrival.to.applied";
+    /** Duration of a learned reconstruction's model inference (part of a readout). */
+    public static final String INFERENCE = "afterglow.latency.inference";
 
     private final MeterRegistry registry;
     private final SensorRegistry sensors;
@@ -124,5 +126,7 @@ public final class NodeMeters {
                 "Start of a frame's readout to its bytes written to a subscriber's socket", tags);
         p.arrivalToAppliedLatency().bind(registry, ARRIVAL_TO_APPLIED,
                 "Host arrival of an event packet to its events applied by the chain", tags);
+        p.inferenceLatency().bind(registry, INFERENCE,
+                "Time a learned reconstruction spent on one model inference (voxel grid, model, crop), part of the readout", tags);
     }
 }

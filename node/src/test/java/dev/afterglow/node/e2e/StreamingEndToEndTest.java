@@ -172,7 +172,12 @@ class StreamingEndToEndTest {
      * the same packets, with the events before the frame's time applied and read out at that time.
      */
     static void assertEqualToInProcessChain(String chain, List<EventBatch> packets, List<IntensityFrame> frames) {
-        Chain reference = Chain.build(chain, W, H);
+        try (Chain reference = Chain.build(chain, W, H)) {
+            assertEqualToInProcessChain(reference, packets, frames);
+        }
+    }
+
+    private static void assertEqualToInProcessChain(Chain reference, List<EventBatch> packets, List<IntensityFrame> frames) {
         float[] expected = new float[W * H];
         int packetIndex = 0;
         int eventIndex = 0;
