@@ -34,7 +34,7 @@ def score(truth, recon):
 
 
 def evaluate(net, path, eval_every=4, warmup_windows=20):
-    d = np.load(path)
+    d = dict(np.load(path))  # NpzFile decompresses an array on every access: load each once
     t = d["t"]
     ends = d["frame_times"]
     h, w = d["frames"].shape[1:]

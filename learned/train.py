@@ -22,6 +22,7 @@ Runs on the CPU with Debian's python3-torch, python3-onnx, python3-numpy and pyt
 import argparse
 import glob
 import json
+import multiprocessing
 import os
 import subprocess
 import sys
@@ -68,7 +69,7 @@ def make_data(args):
 
 
 def load_sequence(path):
-    d = np.load(path)
+    d = dict(np.load(path))  # NpzFile decompresses an array on every access: load each once
     t = d["t"]
     ends = d["frame_times"]
     h, w = d["frames"].shape[1:]
@@ -77,7 +78,8 @@ def load_sequence(path):
     grids = np.empty((len(ends), ember.BINS, h, w), dtype=np.float16)
     for k in range(len(ends)):
         s, e = starts[k], stops[k]
-        g = voxel.bin_events(d["x"][s:e], d["y"][s:e], t[s:e], d["p"][s:e], ends[k] - period, ends[k], ember.BINS, h, w)
+        g = voxel.bin_events_fast(d["x"][s:e], d["y"][s:e], t[s:e], d["p"][s:e], ends[k] - period, ends[k],
+                                  ember.BINS, h, w)
         grids[k] = voxel.normalise(g)
     return grids, d["frames"].astype(np.float32)
 
@@ -196,7 +198,7 @@ def write_fixtures(net, args, folder):
                         "--threads", "1"], check=True)
     net.eval()
     for path in sorted(glob.glob(os.path.join(src, "*.npz")))[:3]:
-        d = np.load(path)
+        d = dict(np.load(path))  # NpzFile decompresses an array on every access: load each once
         h, w = d["frames"].shape[1:]
         hp = -(-h // ember.PAD_MULTIPLE) * ember.PAD_MULTIPLE
         wp = -(-w // ember.PAD_MULTIPLE) * ember.PAD_MULTIPLE
@@ -247,7 +249,8 @@ def main():
     rng = np.random.default_rng(args.seed)
     started = time.time()
     files = make_data(args)
-    data = [load_sequence(f) for f in files]
+    with multiprocessing.Pool(args.threads) as pool:
+        data = pool.map(load_sequence, files, chunksize=8)
     held, train = data[: args.held_out], data[args.held_out:]
     print(f"{len(train)} training and {len(held)} held-out sequences loaded in {time.time() - started:.0f} s", flush=True)
     net = ember.Ember()
@@ -259,11 +262,11 @@ def main():
     log = {"settings": vars(args), "curve": [], "model": ember.NAME}
     train_started = time.time()
     smooth = None
-    for b in range(batches):
+    for batch in range(batches):
         net.train()
         vox, tru = batch_of(train, rng, args.batch, args.crop)
-        b, steps = vox.shape[:2]
-        state = ember.zero_state(b, args.crop, args.crop)
+        steps = vox.shape[1]
+        state = ember.zero_state(args.batch, args.crop, args.crop)
         for c0 in range(0, steps, args.chunk):
             losses = []
             for k in range(c0, min(steps, c0 + args.chunk)):
@@ -278,9 +281,9 @@ def main():
             schedule.step()
             state = state.detach()
             smooth = loss.item() if smooth is None else 0.95 * smooth + 0.05 * loss.item()
-        iteration = (b + 1) * steps_per_batch
+        iteration = (batch + 1) * steps_per_batch
         row = {"iteration": iteration, "train_loss": smooth, "seconds": time.time() - train_started}
-        if (b + 1) % 25 == 0 or b + 1 == batches:
+        if (batch + 1) % 25 == 0 or batch + 1 == batches:
             net.eval()
             row["held_out_loss"] = held_out_loss(net, held)
             print(f"step {iteration}: train {smooth:.4f} held-out {row['held_out_loss']:.4f} "

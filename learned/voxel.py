@@ -38,6 +38,23 @@ def bin_events(x, y, t, p, t0, t1, bins, height, width):
     return grid.reshape(bins, height, width)
 
 
+def bin_events_fast(x, y, t, p, t0, t1, bins, height, width):
+    """Like bin_events, but accumulated in float64 with np.bincount (many times faster): equal to
+    it up to float32 rounding. For preparing training data only."""
+    if len(t) == 0:
+        return np.zeros((bins, height, width), dtype=np.float32)
+    tau = np.clip((bins - 1) * (t - t0).astype(np.float64) / float(t1 - t0), 0.0, bins - 1)
+    i0 = np.floor(tau).astype(np.int64)
+    f = tau - i0
+    pf = p.astype(np.float64)
+    pix = y.astype(np.int64) * width + x.astype(np.int64)
+    upper = np.minimum(i0 + 1, bins - 1)
+    n = bins * height * width
+    grid = np.bincount(i0 * height * width + pix, weights=pf * (1 - f), minlength=n)
+    grid += np.bincount(upper * height * width + pix, weights=np.where(i0 + 1 < bins, pf * f, 0.0), minlength=n)
+    return grid.astype(np.float32).reshape(bins, height, width)
+
+
 def normalise(grid):
     """Non-zero cells to mean 0, standard deviation 1 (population); zero cells stay 0. In place."""
     flat = grid.reshape(-1)
