@@ -2,23 +2,17 @@ package dev.afterglow.node.e2e;
 
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
-import com.google.protobuf.ByteString;
-import dev.afterglow.filters.EventBatch;
-import dev.afterglow.filters.codec.EventPacketCodec;
 import dev.afterglow.filters.learned.TestModels;
 import dev.afterglow.node.AfterglowNode;
 import dev.afterglow.node.client.SensorClient;
 import dev.afterglow.node.client.SubscriberClient;
 import dev.afterglow.node.config.NodeConfig;
 import dev.afterglow.node.stats.NodeCounter;
-import dev.afterglow.proto.v1.Envelope;
-import dev.afterglow.proto.v1.EventPacket;
 import dev.afterglow.proto.v1.IntensityFrame;
 import dev.afterglow.proto.v1.PixelFormat;
 import java.nio.file.Path;
 import java.util.ArrayList;
 import java.util.List;
-import java.util.SplittableRandom;
 import java.util.concurrent.TimeUnit;
 import org.junit.jupiter.api.Test;
 import org.junit.jupiter.api.Timeout;
@@ -50,46 +44,23 @@ class LearnedReconOverloadTest {
                   - {id: wide, width: %d, height: %d, frame-rate-hz: %s, latency-budget-ms: %s,
                      chain: 'learned-recon(model="%s", rate=%sHz, threads=1)'}
                 """.formatted(W, H, FRAME_RATE_HZ, BUDGET_MS, model, FRAME_RATE_HZ), "test");
-        byte[] events = uniformEvents(2_000, PACKET_US, 5); // 400 k events/s: cheap to bin, the model is the load
+        byte[] events = OverloadStream.uniformEvents(W, H, 2_000, PACKET_US, 5); // 400 k events/s: cheap to bin, the model is the load
         long endUs = 5_000_000;
         long settledUs = 1_500_000; // JIT and ONNX Runtime's first runs behind us
-        List<IntensityFrame> frames = new ArrayList<>();
         try (AfterglowNode node = AfterglowNode.start(config);
                 SubscriberClient sub = SubscriberClient.connect("127.0.0.1", node.subscriberPort(), "wide", 0,
                         PixelFormat.PIXEL_FORMAT_GRAY8)) {
             StreamingEndToEndTest.waitFor(() -> node.publisher().count() == 1);
             sub.setTimeoutMillis(30_000);
-            Thread reader = new Thread(() -> {
-                try {
-                    while (true) {
-                        IntensityFrame f = sub.next();
-                        synchronized (frames) {
-                            frames.add(f);
-                        }
-                    }
-                } catch (Exception end) {
-                    // the subscription is closed after the run
-                }
-            });
-            reader.start();
+            OverloadStream.FrameCollector collector = new OverloadStream.FrameCollector(sub);
             try (SensorClient sensor = SensorClient.connect("127.0.0.1", node.ingestTcpPort(), "wide", W, H, false)) {
-                long start = System.nanoTime();
-                long seq = 0;
-                for (long t = 0; t < endUs; t += PACKET_US) {
-                    long wait = start + (t + PACKET_US) * 1000 - System.nanoTime();
-                    if (wait > 0) {
-                        TimeUnit.NANOSECONDS.sleep(wait);
-                    }
-                    sensor.send(Envelope.newBuilder().setSchemaVersion(1).setEvents(EventPacket.newBuilder()
-                            .setSequence(seq++).setTimeBaseUs(t).setEventCount(events.length / 8)
-                            .setEvents(ByteString.copyFrom(events))).build());
-                    sensor.flush();
-                }
+                OverloadStream.sendPaced(sensor, endUs, PACKET_US, t -> events);
             }
             StreamingEndToEndTest.waitFor(() -> node.sensors().get("wide").pendingPackets() == 0);
             Thread.sleep(500);
             sub.close();
-            reader.join(10_000);
+            collector.join();
+            List<IntensityFrame> frames = collector.frames();
             var c = node.sensors().get("wide").counters();
             long skipped = c.get(NodeCounter.FRAMES_SKIPPED);
             long shed = c.get(NodeCounter.PACKETS_SHED_LATENCY) + c.get(NodeCounter.PACKETS_SHED_QUEUE);
@@ -103,11 +74,9 @@ class LearnedReconOverloadTest {
             assertTrue(meanInferenceMs > 1000 / FRAME_RATE_HZ, "inference slower than the frame period: " + meanInferenceMs + " ms");
             assertTrue(skipped + shed > 0, "shed and counted: " + StreamingEndToEndTest.describe(node));
             List<IntensityFrame> settled = new ArrayList<>();
-            synchronized (frames) {
-                for (IntensityFrame f : frames) {
-                    if (f.getFrameTimeUs() > settledUs) {
-                        settled.add(f);
-                    }
+            for (IntensityFrame f : frames) {
+                if (f.getFrameTimeUs() > settledUs) {
+                    settled.add(f);
                 }
             }
             assertTrue(settled.size() > 50, "frames keep coming: " + settled.size() + " " + StreamingEndToEndTest.describe(node));
@@ -139,30 +108,12 @@ class LearnedReconOverloadTest {
     private static double meanNanos(List<IntensityFrame> frames) {
         long sum = 0;
         long n = 0;
-        synchronized (frames) {
-            for (IntensityFrame f : frames) {
-                if (f.getProvenance().getInferenceNs() > 0) {
-                    sum += f.getProvenance().getInferenceNs();
-                    n++;
-                }
+        for (IntensityFrame f : frames) {
+            if (f.getProvenance().getInferenceNs() > 0) {
+                sum += f.getProvenance().getInferenceNs();
+                n++;
             }
         }
         return n == 0 ? 0 : (double) sum / n;
-    }
-
-    /** {@code count} events uniformly over the sensor and over [0, spanUs), time ordered, encoded. */
-    private static byte[] uniformEvents(int count, long spanUs, long seed) {
-        SplittableRandom r = new SplittableRandom(seed);
-        long[] times = new long[count];
-        for (int i = 0; i < count; i++) {
-            times[i] = r.nextLong(spanUs);
-        }
-        java.util.Arrays.sort(times);
-        EventBatch b = new EventBatch(count);
-        b.reset(0);
-        for (int i = 0; i < count; i++) {
-            b.add(r.nextInt(W), r.nextInt(H), times[i], r.nextBoolean() ? 1 : -1);
-        }
-        return EventPacketCodec.encode(b);
     }
 }

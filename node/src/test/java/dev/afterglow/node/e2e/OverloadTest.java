@@ -2,21 +2,15 @@ package dev.afterglow.node.e2e;
 
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
-import com.google.protobuf.ByteString;
-import dev.afterglow.filters.EventBatch;
-import dev.afterglow.filters.codec.EventPacketCodec;
 import dev.afterglow.node.AfterglowNode;
 import dev.afterglow.node.client.SensorClient;
 import dev.afterglow.node.client.SubscriberClient;
 import dev.afterglow.node.config.NodeConfig;
 import dev.afterglow.node.stats.NodeCounter;
-import dev.afterglow.proto.v1.Envelope;
-import dev.afterglow.proto.v1.EventPacket;
 import dev.afterglow.proto.v1.IntensityFrame;
 import dev.afterglow.proto.v1.PixelFormat;
 import java.util.ArrayList;
 import java.util.List;
-import java.util.SplittableRandom;
 import java.util.concurrent.TimeUnit;
 import org.junit.jupiter.api.Test;
 import org.junit.jupiter.api.Timeout;
@@ -43,54 +37,28 @@ class OverloadTest {
                   - {id: cam, width: %d, height: %d, frame-rate-hz: 50, latency-budget-ms: %s,
                      chain: "refractory | patch-support(window=10ms) | high-pass(cutoff=3rad/s)"}
                 """.formatted(W, H, BUDGET_MS), "test");
-        byte[] quiet = uniformEvents(500, PACKET_US, 1);        // 100 k events/s
+        byte[] quiet = OverloadStream.uniformEvents(W, H, 500, PACKET_US, 1);        // 100 k events/s
         // 80 M events/s through the costliest denoiser: several times what one core processes on any
         // machine this runs on, so the burst is shed whatever the CI host's speed.
-        byte[] burst = uniformEvents(BURST_PACKET_EVENTS, PACKET_US, 2);
+        byte[] burst = OverloadStream.uniformEvents(W, H, BURST_PACKET_EVENTS, PACKET_US, 2);
         long burstStartUs = 1_000_000;
         long burstEndUs = 2_000_000;
         long endUs = 6_000_000;
-        List<IntensityFrame> frames = new ArrayList<>();
         try (AfterglowNode node = AfterglowNode.start(config);
                 SubscriberClient sub = SubscriberClient.connect("127.0.0.1", node.subscriberPort(), "cam", 0,
                         PixelFormat.PIXEL_FORMAT_GRAY8)) {
             StreamingEndToEndTest.waitFor(() -> node.publisher().count() == 1);
             sub.setTimeoutMillis(30_000);
-            Thread reader = new Thread(() -> {
-                try {
-                    while (true) {
-                        IntensityFrame f = sub.next();
-                        synchronized (frames) {
-                            frames.add(f);
-                        }
-                    }
-                } catch (Exception end) {
-                    // the subscription is closed after the run
-                }
-            });
-            reader.start();
+            OverloadStream.FrameCollector frames = new OverloadStream.FrameCollector(sub);
             try (SensorClient sensor = SensorClient.connect("127.0.0.1", node.ingestTcpPort(), "cam", W, H, false)) {
-                long start = System.nanoTime();
-                long seq = 0;
-                for (long t = 0; t < endUs; t += PACKET_US) {
-                    boolean inBurst = t >= burstStartUs && t < burstEndUs;
-                    byte[] events = inBurst ? burst : quiet;
-                    long due = start + (t + PACKET_US) * 1000;
-                    long wait = due - System.nanoTime();
-                    if (wait > 0) {
-                        TimeUnit.NANOSECONDS.sleep(wait);
-                    }
-                    sensor.send(Envelope.newBuilder().setSchemaVersion(1).setEvents(EventPacket.newBuilder()
-                            .setSequence(seq++).setTimeBaseUs(t).setEventCount(events.length / 8)
-                            .setEvents(ByteString.copyFrom(events))).build());
-                    sensor.flush();
-                }
+                OverloadStream.sendPaced(sensor, endUs, PACKET_US,
+                        t -> t >= burstStartUs && t < burstEndUs ? burst : quiet);
             }
             // Let the node drain what it still holds, then end the subscription.
             StreamingEndToEndTest.waitFor(() -> node.sensors().get("cam").pendingPackets() == 0);
             Thread.sleep(500);
             sub.close();
-            reader.join(10_000);
+            frames.join();
             var c = node.sensors().get("cam").counters();
             long shed = c.get(NodeCounter.PACKETS_SHED_LATENCY) + c.get(NodeCounter.PACKETS_SHED_QUEUE);
             assertTrue(shed > 0, "burst packets were shed and counted: " + StreamingEndToEndTest.describe(node));
@@ -99,11 +67,9 @@ class OverloadTest {
             assertTrue(shedEvents >= 5L * BURST_PACKET_EVENTS, "at least five whole burst packets shed: " + shedEvents);
 
             List<IntensityFrame> after = new ArrayList<>();
-            synchronized (frames) {
-                for (IntensityFrame f : frames) {
-                    if (f.getFrameTimeUs() > burstEndUs + 1_000_000) {
-                        after.add(f);
-                    }
+            for (IntensityFrame f : frames.frames()) {
+                if (f.getFrameTimeUs() > burstEndUs + 1_000_000) {
+                    after.add(f);
                 }
             }
             assertTrue(after.size() > 100, "frames keep coming after the burst: " + after.size() + " " + StreamingEndToEndTest.describe(node));
@@ -114,21 +80,5 @@ class OverloadTest {
             assertTrue(worstUs <= BUDGET_MS * 1000, "after the burst every frame is younger than the budget; worst "
                     + worstUs + " us; " + StreamingEndToEndTest.describe(node));
         }
-    }
-
-    /** {@code count} events uniformly over the sensor and over [0, spanUs), time ordered, encoded. */
-    private static byte[] uniformEvents(int count, long spanUs, long seed) {
-        SplittableRandom r = new SplittableRandom(seed);
-        long[] times = new long[count];
-        for (int i = 0; i < count; i++) {
-            times[i] = r.nextLong(spanUs);
-        }
-        java.util.Arrays.sort(times);
-        EventBatch b = new EventBatch(count);
-        b.reset(0);
-        for (int i = 0; i < count; i++) {
-            b.add(r.nextInt(W), r.nextInt(H), times[i], r.nextBoolean() ? 1 : -1);
-        }
-        return EventPacketCodec.encode(b);
     }
 }
