@@ -35,26 +35,16 @@ def score(truth, recon):
 
 def evaluate(net, path, eval_every=4, warmup_windows=20):
     d = dict(np.load(path))  # NpzFile decompresses an array on every access: load each once
-    t = d["t"]
     ends = d["frame_times"]
     h, w = d["frames"].shape[1:]
-    hp = -(-h // ember.PAD_MULTIPLE) * ember.PAD_MULTIPLE
-    wp = -(-w // ember.PAD_MULTIPLE) * ember.PAD_MULTIPLE
-    period = int(ends[0])
-    starts, stops = voxel.windows(t, ends)
-    state = ember.zero_state(1, hp, wp)
+    state = ember.zero_state(1, ember.padded(h), ember.padded(w))
     ours, flat = [], []
     with torch.no_grad():
-        for k in range(len(ends)):
-            s, e = starts[k], stops[k]
-            g = voxel.normalise(voxel.bin_events(d["x"][s:e], d["y"][s:e], t[s:e], d["p"][s:e],
-                                                 ends[k] - period, ends[k], ember.BINS, h, w))
-            padded = np.zeros((1, ember.BINS, hp, wp), dtype=np.float32)
-            padded[0, :, :h, :w] = g
-            image, state = net(torch.from_numpy(padded), state)
+        for k, g in enumerate(voxel.sequence_grids(d, ends, int(ends[0]), ember.BINS, h, w)):
+            image, state = ember.infer(net, g, state)
             if k >= warmup_windows and (k + 1) % eval_every == 0:
                 truth = d["frames"][k].astype(np.float64)
-                ours.append(score(truth, image[0, 0, :h, :w].numpy().astype(np.float64)))
+                ours.append(score(truth, image.astype(np.float64)))
                 flat.append(score(truth, np.zeros_like(truth)))
     return float(np.mean(ours)), float(np.mean(flat))
 

@@ -17,6 +17,7 @@ that a much smaller network suffices). Choices and why:
 State layout: channels [0, HIDDEN) are the GRU state, [HIDDEN, HIDDEN + 16) the previous image,
 space-to-depth by 4.
 """
+import numpy as np
 import torch
 import torch.nn as nn
 import torch.nn.functional as F
@@ -72,3 +73,18 @@ class Ember(nn.Module):
 
 def zero_state(batch, height, width):
     return torch.zeros(batch, STATE_CHANNELS, height // DIVISOR, width // DIVISOR)
+
+
+def padded(n):
+    """A sensor side rounded up to the padding multiple of the contract."""
+    return -(-n // PAD_MULTIPLE) * PAD_MULTIPLE
+
+
+def infer(net, grid, state):
+    """One inference as the node runs it: the [BINS, h, w] grid zero-padded at the bottom and right,
+    the output cropped back. Returns the [h, w] log image (numpy) and the next state."""
+    _, h, w = grid.shape
+    voxels = np.zeros((1, BINS, padded(h), padded(w)), dtype=np.float32)
+    voxels[0, :, :h, :w] = grid
+    image, state = net(torch.from_numpy(voxels), state)
+    return image[0, 0, :h, :w].numpy(), state

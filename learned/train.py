@@ -70,17 +70,11 @@ def make_data(args):
 
 def load_sequence(path):
     d = dict(np.load(path))  # NpzFile decompresses an array on every access: load each once
-    t = d["t"]
     ends = d["frame_times"]
     h, w = d["frames"].shape[1:]
-    period = int(ends[0])
-    starts, stops = voxel.windows(t, ends)
     grids = np.empty((len(ends), ember.BINS, h, w), dtype=np.float16)
-    for k in range(len(ends)):
-        s, e = starts[k], stops[k]
-        g = voxel.bin_events_fast(d["x"][s:e], d["y"][s:e], t[s:e], d["p"][s:e], ends[k] - period, ends[k],
-                                  ember.BINS, h, w)
-        grids[k] = voxel.normalise(g)
+    for k, g in enumerate(voxel.sequence_grids(d, ends, int(ends[0]), ember.BINS, h, w, fast=True)):
+        grids[k] = g
     return grids, d["frames"].astype(np.float32)
 
 
@@ -200,24 +194,15 @@ def write_fixtures(net, args, folder):
     for path in sorted(glob.glob(os.path.join(src, "*.npz")))[:3]:
         d = dict(np.load(path))  # NpzFile decompresses an array on every access: load each once
         h, w = d["frames"].shape[1:]
-        hp = -(-h // ember.PAD_MULTIPLE) * ember.PAD_MULTIPLE
-        wp = -(-w // ember.PAD_MULTIPLE) * ember.PAD_MULTIPLE
         t = d["t"]
         period = 50_000
         first = int(t[0])
         ends = first + period * np.arange(1, int((t[-1] - first) // period) + 1, dtype=np.int64)
-        starts, stops = voxel.windows(t, ends)
-        state = ember.zero_state(1, hp, wp)
+        state = ember.zero_state(1, ember.padded(h), ember.padded(w))
         outputs = np.zeros((len(ends), h, w), dtype=np.float32)
         with torch.no_grad():
-            for k in range(len(ends)):
-                s, e = starts[k], stops[k]
-                g = voxel.normalise(voxel.bin_events(d["x"][s:e], d["y"][s:e], t[s:e], d["p"][s:e],
-                                                     ends[k] - period, ends[k], ember.BINS, h, w))
-                padded = np.zeros((1, ember.BINS, hp, wp), dtype=np.float32)
-                padded[0, :, :h, :w] = g
-                image, state = net(torch.from_numpy(padded), state)
-                outputs[k] = image[0, 0, :h, :w].numpy()
+            for k, g in enumerate(voxel.sequence_grids(d, ends, period, ember.BINS, h, w)):
+                outputs[k], state = ember.infer(net, g, state)
         name = os.path.basename(path).replace("mix-", "fixture-")
         np.savez_compressed(os.path.join(folder, name), x=d["x"], y=d["y"], t=t, p=d["p"], window_ends=ends,
                  period_us=np.array([period], dtype=np.int64), width=np.array([w]), height=np.array([h]),

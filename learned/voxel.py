@@ -73,3 +73,14 @@ def windows(t, window_ends):
     ends = np.searchsorted(t, window_ends, side="right")
     starts = np.concatenate([[0], ends[:-1]])
     return starts, ends
+
+
+def sequence_grids(d, ends, period, bins, height, width, fast=False):
+    """Normalised grids of a sequence's windows (t_end - period, t_end] for each of `ends`, one
+    at a time; `d` holds the arrays x, y, t, p. fast: bin_events_fast (training data only)."""
+    binning = bin_events_fast if fast else bin_events
+    starts, stops = windows(d["t"], ends)
+    for k, end in enumerate(ends):
+        s, e = starts[k], stops[k]
+        yield normalise(binning(d["x"][s:e], d["y"][s:e], d["t"][s:e], d["p"][s:e], end - period, end,
+                                bins, height, width))
