@@ -38,7 +38,7 @@ import voxel  # noqa: E402
 
 REPO = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
 MODEL_OUT = os.path.join(REPO, "filters/src/main/resources/dev/afterglow/filters/learned/ember-1.onnx")
-FIXTURES_OUT = os.path.join(REPO, "filters/src/test/resources/dev/afterglow/filters/learned/fixtures")
+FIXTURES_OUT = os.path.join(REPO, "filters/src/test/resources/dev/afterglow/filters/learned")
 
 
 def parse_args():
@@ -47,15 +47,17 @@ def parse_args():
     a.add_argument("--work", default="/tmp/ember-work", help="folder for training data (reused when present)")
     a.add_argument("--sequences", type=int, default=800, help="training sequences (2 s each, 128x128)")
     a.add_argument("--held-out", type=int, default=32, help="of those, kept aside to watch for over-fitting")
-    a.add_argument("--iterations", type=int, default=1500, help="optimiser steps")
+    a.add_argument("--iterations", type=int, default=1800, help="optimiser steps")
     a.add_argument("--batch", type=int, default=8)
     a.add_argument("--crop", type=int, default=64, help="square crop side, a multiple of 8")
-    a.add_argument("--chunk", type=int, default=10, help="windows per back-propagation chunk")
+    a.add_argument("--chunk", type=int, default=20, help="windows per back-propagation chunk")
     a.add_argument("--lr", type=float, default=2e-3)
     a.add_argument("--seed", type=int, default=20261203)
     a.add_argument("--threads", type=int, default=2)
     a.add_argument("--out", default=MODEL_OUT)
     a.add_argument("--fixtures", default=FIXTURES_OUT)
+    a.add_argument("--export-only", action="store_true",
+                   help="no training: export --work/NAME.pt (a finished run's checkpoint) and write its fixtures")
     return a.parse_args()
 
 
@@ -182,31 +184,41 @@ def export(net, path):
 
 
 def write_fixtures(net, args, folder):
-    """Events of small odd-sized sequences and the network's output at each window end, computed
-    here in float32 with the padding rule of the contract, for the Java path to reproduce."""
+    """Small odd-sized event sequences, readout times and the network's output at each readout,
+    computed here in float32 by the node's rules (windows of 50 ms on multiples of 50 ms of sensor
+    time, each inferred once it has ended, the padding of the contract), for the Java path
+    to reproduce (LearnedReconstructionTest). Readouts every 30 ms: some repeat, some infer."""
     os.makedirs(folder, exist_ok=True)
+    for old in glob.glob(os.path.join(folder, "*.fixture-*.npz")):
+        os.remove(old)
     src = os.path.join(args.work, "fixtures-src")
     if len(glob.glob(os.path.join(src, "*.npz"))) < 3:
         subprocess.run(["java", "-jar", args.jar, "training-set", "--out", src, "--sequences", "3",
                         "--first-seed", "900000", "--width", "50", "--height", "38", "--seconds", "0.4",
                         "--threads", "1"], check=True)
     net.eval()
+    period = 50_000
     for path in sorted(glob.glob(os.path.join(src, "*.npz")))[:3]:
         d = dict(np.load(path))  # NpzFile decompresses an array on every access: load each once
         h, w = d["frames"].shape[1:]
         t = d["t"]
-        period = 50_000
         first = int(t[0])
-        ends = first + period * np.arange(1, int((t[-1] - first) // period) + 1, dtype=np.int64)
+        readouts = first + 30_000 * np.arange(1, int((t[-1] - first) // 30_000) + 1, dtype=np.int64)
+        origin = first // period * period  # windows sit on multiples of the period, as the node's
+        window_ends = origin + period * np.arange(1, int((readouts[-1] - origin) // period) + 1, dtype=np.int64)
         state = ember.zero_state(1, ember.padded(h), ember.padded(w))
-        outputs = np.zeros((len(ends), h, w), dtype=np.float32)
+        outputs = [np.zeros((h, w), dtype=np.float32)]
         with torch.no_grad():
-            for k, g in enumerate(voxel.sequence_grids(d, ends, period, ember.BINS, h, w)):
-                outputs[k], state = ember.infer(net, g, state)
-        name = os.path.basename(path).replace("mix-", "fixture-")
-        np.savez_compressed(os.path.join(folder, name), x=d["x"], y=d["y"], t=t, p=d["p"], window_ends=ends,
-                 period_us=np.array([period], dtype=np.int64), width=np.array([w]), height=np.array([h]),
-                 log_image=outputs)
+            for g in voxel.sequence_grids(d, window_ends, period, ember.BINS, h, w):
+                image, state = ember.infer(net, g, state)
+                outputs.append(image.astype(np.float32))
+        done = np.searchsorted(window_ends, readouts, side="right")  # windows ended by each readout
+        inferred = np.diff(np.concatenate([[0], done]))  # windows inferred since the previous readout
+        events = np.stack([d["x"], d["y"], t, d["p"]], axis=1).astype(np.int64)
+        name = ember.NAME + ".fixture-" + os.path.basename(path)[len("mix-"):]
+        np.savez_compressed(os.path.join(folder, name), sensor=np.array([w, h], dtype=np.int64),
+                            period_us=np.array([period], dtype=np.int64), events=events, readout_us=readouts,
+                            log_image=np.stack([outputs[k] for k in done]), inferred=inferred.astype(np.int8))
 
 
 def plot_curve(log, path):
@@ -232,6 +244,13 @@ def main():
     torch.manual_seed(args.seed)
     torch.set_num_threads(args.threads)
     rng = np.random.default_rng(args.seed)
+    if args.export_only:
+        net = ember.Ember()
+        net.load_state_dict(torch.load(os.path.join(args.work, ember.NAME + ".pt")))
+        export(net, args.out)
+        write_fixtures(net, args, args.fixtures)
+        print(f"exported {args.out} ({os.path.getsize(args.out)} bytes) and its fixtures")
+        return
     started = time.time()
     files = make_data(args)
     with multiprocessing.Pool(args.threads) as pool:

@@ -69,14 +69,14 @@ def normalise(grid):
 
 
 def windows(t, window_ends):
-    """Index ranges of the events in each window (t_prev, t_end]; t sorted."""
-    ends = np.searchsorted(t, window_ends, side="right")
+    """Index ranges of the events in each window [t_prev, t_end), as the node's windows; t sorted."""
+    ends = np.searchsorted(t, window_ends, side="left")
     starts = np.concatenate([[0], ends[:-1]])
     return starts, ends
 
 
 def sequence_grids(d, ends, period, bins, height, width, fast=False):
-    """Normalised grids of a sequence's windows (t_end - period, t_end] for each of `ends`, one
+    """Normalised grids of a sequence's windows [t_end - period, t_end) for each of `ends`, one
     at a time; `d` holds the arrays x, y, t, p. fast: bin_events_fast (training data only)."""
     binning = bin_events_fast if fast else bin_events
     starts, stops = windows(d["t"], ends)

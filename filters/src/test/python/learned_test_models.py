@@ -182,7 +182,7 @@ def network(voxels, state):
 
 
 def fixture(path):
-    """A seeded stream through the stage's rules: windows, clamping, reuse, padding, cropping."""
+    """A seeded stream through the stage's rules: windows on the sensor's clock, reuse, padding, cropping."""
     width, height = 13, 10                     # not multiples of P: padded to 16 x 16
     period_us = 10_000                         # rate 100 Hz
     hp, wp = -(-height // P) * P, -(-width // P) * P
@@ -191,31 +191,26 @@ def fixture(path):
     times = np.sort(rng.integers(1_000, 41_000, size=n))
     events = np.stack([rng.integers(0, width, n), rng.integers(0, height, n), times,
                        np.where(rng.random(n) < 0.5, -1, 1)], axis=1).astype(np.int64)
-    readouts = np.arange(4_000, 44_001, 4_000, dtype=np.int64)   # 4 ms apart: some reuse, some infer
+    # 4 ms apart (some readouts repeat, some infer), then a 16 ms gap over which two windows end
+    readouts = np.concatenate([np.arange(4_000, 24_001, 4_000), [40_000, 44_000, 52_000]]).astype(np.int64)
     state = np.zeros((S, hp // D, wp // D), dtype=np.float32)
     last = np.zeros((height, width), dtype=np.float32)
-    have_output = False
-    t0 = int(events[0, 2])
-    window = []
+    t0 = int(events[0, 2]) // period_us * period_us  # window k is [t0 + k period, t0 + (k + 1) period)
+    k = 0
     images, inferred = [], []
-    i = 0
     for T in readouts:
-        while i < n and events[i, 2] < T:
-            window.append(tuple(int(v) for v in events[i]))
-            i += 1
-        t1 = t0 + period_us
-        if T >= t1 or (not have_output and window):
-            grid = normalise(voxel_grid(window, t0, t1, width, height))
+        new = 0
+        while t0 + (k + 1) * period_us <= T:   # every window ended by T, quiet ones too, in order
+            a, b = t0 + k * period_us, t0 + (k + 1) * period_us
+            window = [tuple(int(v) for v in e) for e in events if a <= e[2] < b]
+            grid = normalise(voxel_grid(window, a, b, width, height))
             padded = np.zeros((B, hp, wp), dtype=np.float32)
             padded[:, :height, :width] = grid
             log_image, state = network(padded, state)
             last = log_image[:height, :width]
-            have_output = True
-            window = []
-            t0 = int(T)
-            inferred.append(1)
-        else:
-            inferred.append(0)
+            k += 1
+            new += 1
+        inferred.append(new)                   # windows inferred since the previous readout
         images.append(last.copy())
     np.savez(path, sensor=np.array([width, height], dtype=np.int64), period_us=np.array([period_us], dtype=np.int64),
              events=events, readout_us=readouts, log_image=np.stack(images).astype(np.float32),

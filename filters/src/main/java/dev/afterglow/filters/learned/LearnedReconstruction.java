@@ -15,16 +15,20 @@ import java.util.Arrays;
  * the previous hidden state to a recurrent convolutional network, here any ONNX model that follows
  * the {@link ModelContract}, run on the CPU by ONNX Runtime.
  *
- * <p>Windows and readouts: the first window starts at the first event's time t0 and ends at
- * t1 = t0 + period (period = 1 / inference rate). {@link #process} bins events into the current
- * window; an event at or after t1 that comes before the next readout lands in the last bin.
- * {@link #readLog}{@code (T)} runs one inference when T &ge; t1, or when there is no output yet
- * and the window holds events; the state is carried to the next inference, the next window starts
- * at t0 = T, and the log image (cropped from the padded size) is the output. Any other readout
- * repeats the last output (zeros before the first inference). A frame time nobody reads
- * ({@link #readoutSkipped}) at or after t1 drops the window and starts the next at that time.
+ * <p>Windows on the sensor's clock: window k covers [k P, (k + 1) P) of sensor time, P = 1 /
+ * inference rate, whatever the readouts do, so the model sees the windows it was trained on; the
+ * first is the one holding the first event. A window is inferred once, when it has
+ * ended: when an event at or after its end arrives ({@link #process} splits the batch there), or
+ * at a readout {@link #readLog}{@code (T)} with T at or after its end, whichever comes first. The
+ * state is carried from one window to the next. A window without events is inferred too (the
+ * model sees a quiet scene), but one catch-up (one event or readout that ends several windows at
+ * once: a silent sensor, shed packets, a jump in its clock) infers at most
+ * {@value #MAX_QUIET_CATCH_UP} quiet windows and skips the rest, so a gap costs no more than a few
+ * inferences. A readout returns the output of the last window inferred
+ * (zeros before the first). A frame time nobody reads ({@link #readoutSkipped}) drops, without
+ * inference, the windows that ended by then: with nobody watching, the model costs nothing.
  *
- * <p>Costs: per event, the voxel grid's binning (no allocation); per inference, the grid's
+ * <p>Costs: per event, one time comparison and the voxel grid's binning (no allocation); per inference, the grid's
  * normalisation, the model, and ONNX Runtime's small result object (the tensors are allocated
  * once, see {@link ModelSession}); per repeated readout, one array copy.
  *
@@ -35,6 +39,8 @@ public final class LearnedReconstruction implements InferringReconstruction, Aut
     public static final String BUILTIN = ModelFile.BUILTIN;
     /** Class-path resource of the shipped model. */
     public static final String BUILTIN_RESOURCE = ModelFile.BUILTIN_RESOURCE;
+    /** Quiet (event-free) windows one catch-up still infers; later ones are skipped. */
+    public static final int MAX_QUIET_CATCH_UP = 2;
 
     private final int width;
     private final int height;
@@ -47,12 +53,13 @@ public final class LearnedReconstruction implements InferringReconstruction, Aut
     private final float[] last;
     private final StageCounters counters = new StageCounters();
     private boolean windowOpen;
-    private boolean haveOutput;
     private long t0Us;
     private long t1Us;
+    private long inferenceNanosSinceReadout;
     private long lastInferenceNanos;
     private long inferences;
     private long windowsDropped;
+    private long quietWindowsSkipped;
 
     private LearnedReconstruction(String modelText, ModelFile file, ModelSession session, long periodUs, int threads,
             int width, int height) {
@@ -105,24 +112,57 @@ public final class LearnedReconstruction implements InferringReconstruction, Aut
             return;
         }
         if (!windowOpen) {
-            // The first window starts at the first event, not the batch base, so results do not depend on batching.
-            t0Us = batch.minTimeUs();
+            // Windows sit on multiples of the period from sensor time 0, as the node's frame times do, so a
+            // window ends at a frame time when the frame rate is a multiple of the rate: no staleness.
+            t0Us = Math.floorDiv(batch.minTimeUs(), periodUs) * periodUs;
             t1Us = t0Us + periodUs;
             windowOpen = true;
         }
-        grid.add(batch, t0Us, t1Us);
+        int[] ts = batch.t;
+        long base = batch.timeBaseUs;
+        int from = 0;
+        for (int i = 0; i < n; i++) {
+            long t = base + ts[i];
+            if (t >= t1Us) {
+                grid.add(batch, from, i, t0Us, t1Us);
+                inferWindowsEndingBy(t);
+                from = i;
+            }
+        }
+        grid.add(batch, from, n, t0Us, t1Us);
         counters.record(n, n);
     }
 
     @Override
     public void readLog(long timeUs, float[] out) {
-        lastInferenceNanos = 0;
-        if (windowOpen && (timeUs >= t1Us || (!haveOutput && grid.eventsAdded() > 0))) {
-            infer();
-            t0Us = timeUs;
-            t1Us = timeUs + periodUs;
+        if (windowOpen) {
+            inferWindowsEndingBy(timeUs);
         }
+        lastInferenceNanos = inferenceNanosSinceReadout;
+        inferenceNanosSinceReadout = 0;
         System.arraycopy(last, 0, out, 0, last.length);
+    }
+
+    /** Infers the windows that end at or before {@code timeUs}, in order, and opens the one holding it. */
+    private void inferWindowsEndingBy(long timeUs) {
+        int quiet = 0;
+        while (t1Us <= timeUs) {
+            if (grid.eventsAdded() > 0) {
+                infer();
+            } else if (quiet < MAX_QUIET_CATCH_UP) {
+                quiet++;
+                infer();
+            } else {
+                // A gap: move straight to the window holding timeUs.
+                long skipped = (timeUs - t0Us) / periodUs;
+                quietWindowsSkipped += skipped;
+                t0Us += skipped * periodUs;
+                t1Us = t0Us + periodUs;
+                continue;
+            }
+            t0Us = t1Us;
+            t1Us = t0Us + periodUs;
+        }
     }
 
     private void infer() {
@@ -134,18 +174,18 @@ public final class LearnedReconstruction implements InferringReconstruction, Aut
         for (int y = 0; y < height; y++) {
             image.get(y * wp, last, y * width, width);
         }
-        haveOutput = true;
         inferences++;
-        lastInferenceNanos = Math.max(1, System.nanoTime() - start);
+        inferenceNanosSinceReadout += Math.max(1, System.nanoTime() - start);
     }
 
     @Override
     public void readoutSkipped(long timeUs) {
         if (windowOpen && timeUs >= t1Us) {
+            long ended = (timeUs - t0Us) / periodUs;
             grid.clear();
-            t0Us = timeUs;
-            t1Us = timeUs + periodUs;
-            windowsDropped++;
+            t0Us += ended * periodUs;
+            t1Us = t0Us + periodUs;
+            windowsDropped += ended;
         }
     }
 
@@ -167,6 +207,11 @@ public final class LearnedReconstruction implements InferringReconstruction, Aut
     /** Windows dropped at frame times nobody read. */
     public long windowsDropped() {
         return windowsDropped;
+    }
+
+    /** Quiet windows skipped, beyond {@value #MAX_QUIET_CATCH_UP} in one catch-up. */
+    public long quietWindowsSkipped() {
+        return quietWindowsSkipped;
     }
 
     /** The model's contract values (B, S, D, P, name). */

@@ -66,11 +66,23 @@ public final class VoxelGrid {
      * @throws IllegalArgumentException if {@code t1Us <= t0Us}
      */
     public void add(EventBatch batch, long t0Us, long t1Us) {
+        add(batch, 0, batch.size, t0Us, t1Us);
+    }
+
+    /**
+     * Bins events {@code from} (inclusive) to {@code to} (exclusive) of {@code batch} into the
+     * window [{@code t0Us}, {@code t1Us}), as {@link #add(EventBatch, long, long)}.
+     *
+     * @throws IllegalArgumentException if {@code t1Us <= t0Us} or the range is not inside the batch
+     */
+    public void add(EventBatch batch, int from, int to, long t0Us, long t1Us) {
         if (t1Us <= t0Us) {
             throw new IllegalArgumentException("window [" + t0Us + ", " + t1Us + ") is empty");
         }
-        int n = batch.size;
-        if (n == 0) {
+        if (from < 0 || to > batch.size || from > to) {
+            throw new IllegalArgumentException("events [" + from + ", " + to + ") outside the batch of " + batch.size);
+        }
+        if (from == to) {
             return;
         }
         float[] g = cells;
@@ -84,7 +96,7 @@ public final class VoxelGrid {
         double lastBin = last;
         double span = (double) (t1Us - t0Us);
         long base = batch.timeBaseUs - t0Us;
-        for (int i = 0; i < n; i++) {
+        for (int i = from; i < to; i++) {
             // Written exactly as the contract: (B - 1) * (double) (t - t0) / (double) (t1 - t0).
             double tau = lastBin * (double) (base + ts[i]) / span;
             if (tau < 0) {
@@ -101,7 +113,7 @@ public final class VoxelGrid {
                 g[cell + planeSize] += p * f;
             }
         }
-        eventsAdded += n;
+        eventsAdded += to - from;
     }
 
     /**

@@ -28,10 +28,10 @@ public interface Reconstruction extends EventStage {
     void readLog(long timeUs, float[] out);
 
     /**
-     * Tells the stage that a frame time passed without a readout (nobody was watching). Stages
-     * whose state does not depend on readouts ignore it (the default); one that works in windows
-     * between readouts (the learned reconstruction) starts a new window here, so its next window
-     * does not pile up everything since its last readout.
+     * Tells the stage that a frame time passed without a readout (nobody was watching, or the
+     * frame was shed under overload). Stages whose work does not depend on readouts ignore it (the
+     * default); one with a costly step per window of time (the learned reconstruction) drops the
+     * windows that ended by then, unprocessed, so frames nobody reads cost nothing.
      */
     default void readoutSkipped(long timeUs) {
     }

@@ -149,6 +149,31 @@ class VoxelGridTest {
     }
 
     @Test
+    void shouldBinOnlyTheGivenRangeOfABatch() {
+        SplittableRandom r = new SplittableRandom(3);
+        EventBatch all = new EventBatch(200);
+        all.reset(500);
+        for (int i = 0; i < 200; i++) {
+            all.add(r.nextInt(6), r.nextInt(4), 500 + 10L * i, r.nextBoolean() ? 1 : -1);
+        }
+        EventBatch middle = new EventBatch(200);
+        middle.reset(500);
+        for (int i = 40; i < 130; i++) {
+            middle.add(all.x[i], all.y[i], 500 + 10L * i, all.p[i]);
+        }
+        VoxelGrid ranged = new VoxelGrid(5, 6, 4);
+        VoxelGrid whole = new VoxelGrid(5, 6, 4);
+        ranged.add(all, 40, 130, 900, 1_800);
+        whole.add(middle, 900, 1_800);
+        assertArrayEquals(whole.cells(), ranged.cells(), 0f, "events 40 .. 129 only");
+        assertEquals(90, ranged.eventsAdded());
+        ranged.add(all, 7, 7, 900, 1_800);
+        assertEquals(90, ranged.eventsAdded(), "an empty range adds nothing");
+        assertThrows(IllegalArgumentException.class, () -> ranged.add(all, 150, 201, 900, 1_800));
+        assertThrows(IllegalArgumentException.class, () -> ranged.add(all, 20, 10, 900, 1_800));
+    }
+
+    @Test
     void shouldNormaliseNonZeroCellsToTheirMeanAndPopulationDeviation() {
         SplittableRandom r = new SplittableRandom(5);
         for (int k = 0; k < 50; k++) {

@@ -136,6 +136,8 @@ public final class SensorPipeline {
     private long workMeanUs;
     /** Mean time of a readout (moving average over ~8 frames); a learned reconstruction's inferences make it large. */
     private long readoutMeanNanos;
+    /** Model inferences already added to the counters. */
+    private long inferencesCounted;
     private double rateHz;
 
     private boolean scheduleStarted;
@@ -199,6 +201,7 @@ public final class SensorPipeline {
             this.stageTimers = new StageTimers(built);
             this.stageInAtFrame = new long[built.stages().size()];
             this.stageOutAtFrame = new long[built.stages().size()];
+            this.inferencesCounted = 0;
             markStageCounts();
         }
         this.toneMapper = new ToneMapper(ToneMapText.parse("tone-map", c.toneMap));
@@ -659,6 +662,7 @@ public final class SensorPipeline {
         long start = Math.min(Math.max(frameIndex, firstFresh), lastDue);
         if (start > frameIndex) {
             counters.add(NodeCounter.FRAMES_SKIPPED, start - frameIndex);
+            chain.reconstruction().readoutSkipped(frameTime(start - 1, rateHz)); // a model sheds those windows too
             frameIndex = start;
             nextFrameUs = frameTime(frameIndex, rateHz);
         }
@@ -673,6 +677,7 @@ public final class SensorPipeline {
                     : pending.get() > 0 && agesPastBudget(nextFrameUs, 1); // a fresher newest frame is queued
             if (skip) {
                 counters.increment(NodeCounter.FRAMES_SKIPPED);
+                chain.reconstruction().readoutSkipped(nextFrameUs);
             } else {
                 readoutAndPublish(nextFrameUs, frameIndex);
             }
@@ -761,9 +766,11 @@ public final class SensorPipeline {
         InferringReconstruction model = chain.reconstruction() instanceof InferringReconstruction m ? m : null;
         long inferenceNanos = model == null ? 0 : model.lastInferenceNanos();
         if (model != null) {
-            if (inferenceNanos > 0) {
-                counters.increment(NodeCounter.INFERENCES);
-                inferenceDuration.recordNanos(inferenceNanos);
+            long runs = model.inferences() - inferencesCounted;
+            inferencesCounted += runs;
+            if (runs > 0) {
+                counters.add(NodeCounter.INFERENCES, runs);
+                inferenceDuration.recordNanos(inferenceNanos / runs); // the mean of this frame's inferences
             } else {
                 counters.increment(NodeCounter.INFERENCE_REPEATS);
             }

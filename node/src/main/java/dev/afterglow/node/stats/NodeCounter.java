@@ -35,7 +35,7 @@ public enum NodeCounter {
     FRAMES_SKIPPED(Scope.SENSOR, "afterglow.frames.skipped", "Frame times skipped because they were already older than the latency budget when due"),
     FRAMES_PUBLISHED(Scope.SENSOR, "afterglow.frames.published", "Frames read out and offered to subscribers"),
     FRAMES_UNREAD(Scope.SENSOR, "afterglow.frames.unread", "Frame times that passed with nobody subscribed, so nothing was read out"),
-    INFERENCES(Scope.SENSOR, "afterglow.inference.runs", "Model inferences run by a learned reconstruction (frames with a new model output)"),
+    INFERENCES(Scope.SENSOR, "afterglow.inference.runs", "Model inferences run by a learned reconstruction (one per window of sensor time, at readouts or while events arrive)"),
     INFERENCE_REPEATS(Scope.SENSOR, "afterglow.inference.repeats", "Frames of a learned reconstruction that repeated the last inference's output (inference rate below the frame rate)"),
     FRAMES_MISSED(Scope.SENSOR, "afterglow.frames.missed", "Frames a subscriber missed because it could not keep up"),
     LIVE_FRAMES_SENT(Scope.SENSOR, "afterglow.live.frames.sent", "Frames sent to live view pages (WebSocket)"),
