@@ -28,8 +28,8 @@ import org.junit.jupiter.api.Timeout;
  */
 @Timeout(value = 60, unit = TimeUnit.SECONDS)
 class StreamingEndToEndTest {
-    private static final int W = 64;
-    private static final int H = 48;
+    static final int W = 64;
+    static final int H = 48;
     private static final String CHAIN = "refractory(period=1ms) | background-activity(window=10ms) | high-pass(cutoff=3rad/s, contrast=0.2)";
 
     static NodeConfig config(String sensorId, double rateHz, double budgetMs) {

@@ -1,0 +1,126 @@
+package dev.afterglow.node.e2e;
+
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import com.google.protobuf.ByteString;
+import dev.afterglow.filters.EventBatch;
+import dev.afterglow.filters.codec.EventPacketCodec;
+import dev.afterglow.node.AfterglowNode;
+import dev.afterglow.node.client.SensorClient;
+import dev.afterglow.node.client.SubscriberClient;
+import dev.afterglow.node.config.NodeConfig;
+import dev.afterglow.node.recording.Replayer;
+import dev.afterglow.node.stats.NodeCounter;
+import dev.afterglow.proto.v1.Envelope;
+import dev.afterglow.proto.v1.EventPacket;
+import dev.afterglow.proto.v1.IntensityFrame;
+import dev.afterglow.proto.v1.PixelFormat;
+import dev.afterglow.proto.v1.SensorHello;
+import dev.afterglow.recording.RecordingWriter;
+import java.io.IOException;
+import java.nio.file.Path;
+import java.util.ArrayList;
+import java.util.List;
+import java.util.concurrent.TimeUnit;
+import org.junit.jupiter.api.Test;
+import org.junit.jupiter.api.Timeout;
+import org.junit.jupiter.api.io.TempDir;
+
+/**
+ * A recording replayed into the real node on loopback as a sensor: the frames equal, bit for bit,
+ * the same chain run in this process on the recorded packets; played twice, the node sees one
+ * continuous sensor (no clock restart) and every event of both passes.
+ */
+@Timeout(value = 90, unit = TimeUnit.SECONDS)
+class ReplayEndToEndTest {
+    private static final String CHAIN = "refractory(period=100us) | high-pass(cutoff=5rad/s, contrast=0.2)";
+    @TempDir
+    Path dir;
+
+    private static NodeConfig config() {
+        return NodeConfig.parse("""
+                listen: {ingest-tcp-port: 0, ingest-udp-port: -1, subscriber-port: 0, http-port: -1}
+                sensors:
+                  - {id: bench, width: %d, height: %d, frame-rate-hz: 100, latency-budget-ms: 5000, chain: '%s'}
+                """.formatted(StreamingEndToEndTest.W, StreamingEndToEndTest.H, CHAIN), "test");
+    }
+
+    /** Records the packets as a sensor would have sent them, each arriving 1 ms after its time base. */
+    private Path record(List<EventBatch> packets) throws IOException {
+        Path folder = dir.resolve("rec");
+        SensorHello hello = SensorClient.hello("bench", StreamingEndToEndTest.W, StreamingEndToEndTest.H, false, "");
+        try (RecordingWriter w = RecordingWriter.create(folder, "bench", hello, "test", 0, RecordingWriter.Settings.keepAll())) {
+            w.write(0, Envelope.newBuilder().setSchemaVersion(1).setHello(hello).build());
+            long seq = 0;
+            for (EventBatch b : packets) {
+                w.write(b.timeBaseUs + 1_000, Envelope.newBuilder().setSchemaVersion(1).setEvents(EventPacket.newBuilder()
+                        .setSequence(seq++).setTimeBaseUs(b.timeBaseUs).setEventCount(b.size)
+                        .setEvents(ByteString.copyFrom(EventPacketCodec.encode(b)))).build());
+            }
+        }
+        return folder;
+    }
+
+    private static Replayer.Target to(SensorClient c) {
+        return new Replayer.Target() {
+            @Override
+            public void send(Envelope envelope) throws IOException {
+                c.send(envelope);
+            }
+
+            @Override
+            public void flush() throws IOException {
+                c.flush();
+            }
+        };
+    }
+
+    @Test
+    void shouldPublishTheFramesOfTheRecordedPacketsBitForBit() throws Exception {
+        List<EventBatch> packets = SceneEvents.packets(StreamingEndToEndTest.W, StreamingEndToEndTest.H, 600_000, 1_000, 23);
+        Path recording = record(packets);
+        try (AfterglowNode node = AfterglowNode.start(config());
+                SubscriberClient sub = SubscriberClient.connect("127.0.0.1", node.subscriberPort(), "bench", 0,
+                        PixelFormat.PIXEL_FORMAT_LOG_F32)) {
+            sub.setTimeoutMillis(20_000);
+            StreamingEndToEndTest.waitFor(() -> node.publisher().count() == 1);
+            Replayer.Result r;
+            try (SensorClient c = SensorClient.connect("127.0.0.1", node.ingestTcpPort(),
+                    SensorClient.hello("bench", StreamingEndToEndTest.W, StreamingEndToEndTest.H, false, ""))) {
+                r = new Replayer(recording, 1, 0, 1).run(to(c));
+            }
+            long events = packets.stream().mapToLong(b -> b.size).sum();
+            assertEquals(events, r.events());
+            assertEquals(packets.size(), r.envelopes(), "one envelope per recorded packet");
+            assertTrue(r.seconds() > 0.55, "at the recorded pace: " + r.seconds() + " s");
+            long lastEventUs = packets.get(packets.size() - 1).timeUs(packets.get(packets.size() - 1).size - 1);
+            List<IntensityFrame> frames = new ArrayList<>();
+            for (int i = 0; i < lastEventUs / 10_000; i++) {
+                frames.add(sub.next());
+            }
+            StreamingEndToEndTest.assertEqualToInProcessChain(CHAIN, packets, frames);
+            StreamingEndToEndTest.waitFor(() -> node.sensors().get("bench").counters().get(NodeCounter.EVENTS_TCP) == events);
+        }
+    }
+
+    @Test
+    void shouldPlayAgainAsOneContinuousSensor() throws Exception {
+        List<EventBatch> packets = SceneEvents.packets(StreamingEndToEndTest.W, StreamingEndToEndTest.H, 300_000, 1_000, 24);
+        Path recording = record(packets);
+        long events = packets.stream().mapToLong(b -> b.size).sum();
+        try (AfterglowNode node = AfterglowNode.start(config())) {
+            Replayer.Result r;
+            try (SensorClient c = SensorClient.connect("127.0.0.1", node.ingestTcpPort(),
+                    SensorClient.hello("bench", StreamingEndToEndTest.W, StreamingEndToEndTest.H, false, ""))) {
+                r = new Replayer(recording, 2, 0, 3).run(to(c));
+            }
+            assertEquals(3 * events, r.events());
+            assertTrue(r.seconds() > 0.4, "three passes of 0.3 s at twice the pace: " + r.seconds() + " s");
+            var counters = node.sensors().get("bench").counters();
+            StreamingEndToEndTest.waitFor(() -> counters.get(NodeCounter.EVENTS_TCP) == 3 * events);
+            assertEquals(0, counters.get(NodeCounter.CLOCK_RESTARTS), "the clock runs on from pass to pass");
+            assertEquals(0, counters.get(NodeCounter.PACKETS_PAST) + counters.get(NodeCounter.PACKETS_FUTURE));
+        }
+    }
+}
