@@ -5,6 +5,9 @@ import dev.afterglow.node.client.ClientTls;
 import dev.afterglow.node.client.SensorClient;
 import dev.afterglow.node.client.UdpSensorClient;
 import dev.afterglow.node.demo.SyntheticFeed;
+import dev.afterglow.proto.v1.Envelope;
+import dev.afterglow.proto.v1.SensorHello;
+import dev.afterglow.recording.RecordingWriter;
 import java.util.Locale;
 import java.util.concurrent.Callable;
 import picocli.CommandLine.Command;
@@ -17,8 +20,11 @@ import picocli.CommandLine.Option;
                 "For a sensor with a token, set AFTERGLOW_SENSOR_TOKEN: it goes in the hello (TCP) or seals every datagram (UDP)."})
 public final class FeedCommand implements Callable<Integer> {
 
-    @Option(names = "--node", paramLabel = "HOST:PORT", description = "Node's sensor port (TCP or UDP). Default: ${DEFAULT-VALUE}")
+    @Option(names = "--node", paramLabel = "HOST:PORT", description = "Node's sensor port (TCP or UDP), or none (with --record-to). Default: ${DEFAULT-VALUE}")
     String node = "127.0.0.1:7301";
+
+    @Option(names = "--record-to", paramLabel = "FOLDER", description = "Also write what is sent as a recording (segments FOLDER/SENSOR-000000.agrec, ...).")
+    java.nio.file.Path recordTo;
 
     @Option(names = "--transport", description = "tcp or udp. Default: ${DEFAULT-VALUE}")
     String transport = "tcp";
@@ -62,7 +68,11 @@ public final class FeedCommand implements Callable<Integer> {
 
     @Override
     public Integer call() throws Exception {
-        HostPort target = HostPort.parse("--node", node);
+        boolean toNode = !node.equals("none");
+        if (!toNode && recordTo == null) {
+            throw new IllegalArgumentException("--node none: give --record-to, or there is nowhere to send");
+        }
+        HostPort target = toNode ? HostPort.parse("--node", node) : null;
         SceneKind kind = Scenes.parse("--scene", scene);
         String id = sensorId == null ? kind.label() : sensorId;
         Checks.range("--width", width, SceneKind.MIN_WIDTH, 1280);
@@ -83,14 +93,27 @@ public final class FeedCommand implements Callable<Integer> {
         SyntheticFeed feed = new SyntheticFeed(kind, width, height, noiseHz, seed);
         long sent;
         long start = System.nanoTime();
-        if (transport.equals("tcp")) {
-            try (SensorClient c = SensorClient.connect(target.host(), target.port(),
-                    SensorClient.hello(id, width, height, frames, token), clientTls)) {
-                sent = feed.run(SyntheticFeed.tcp(c), id, seconds, packetUs, speed, frames);
+        boolean sendFrames = frames && transport.equals("tcp");
+        SensorHello hello = SensorClient.hello(id, width, height, sendFrames, token);
+        try (RecordingWriter recording = recordTo == null ? null : RecordingWriter.create(recordTo, id, hello,
+                "afterglow feed", System.currentTimeMillis() * 1000, RecordingWriter.Settings.keepAll())) {
+            SyntheticFeed.Sink record = null;
+            if (recording != null) {
+                recording.write(0, Envelope.newBuilder().setSchemaVersion(1).setHello(hello).build());
+                record = SyntheticFeed.recording(recording, id);
             }
-        } else {
-            try (UdpSensorClient c = new UdpSensorClient(target.host(), target.port(), id, token)) {
-                sent = feed.run(SyntheticFeed.udp(c), id, seconds, packetUs, speed, false);
+            if (!toNode) {
+                sent = feed.run(record, id, seconds, packetUs, speed, sendFrames);
+            } else if (transport.equals("tcp")) {
+                try (SensorClient c = SensorClient.connect(target.host(), target.port(), hello, clientTls)) {
+                    SyntheticFeed.Sink tcp = SyntheticFeed.tcp(c);
+                    sent = feed.run(record == null ? tcp : SyntheticFeed.both(tcp, record), id, seconds, packetUs, speed, sendFrames);
+                }
+            } else {
+                try (UdpSensorClient c = new UdpSensorClient(target.host(), target.port(), id, token)) {
+                    SyntheticFeed.Sink udp = SyntheticFeed.udp(c);
+                    sent = feed.run(record == null ? udp : SyntheticFeed.both(udp, record), id, seconds, packetUs, speed, false);
+                }
             }
         }
         double wall = (System.nanoTime() - start) * 1e-9;

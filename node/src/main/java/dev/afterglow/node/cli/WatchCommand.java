@@ -73,6 +73,9 @@ public final class WatchCommand implements Callable<Integer> {
                 SubscriberClient.request(sensorId, rate, f, r[0], r[1], r[2], r[3], downscale).toBuilder()
                         .setToken(System.getenv().getOrDefault("AFTERGLOW_SUBSCRIBER_TOKEN", "")).build(), tls.clientTls())) {
             new FrameWatcher(client, System.out, save, saveEvery).run(count);
+        } catch (SubscriberClient.RefusedException e) {
+            System.err.println("afterglow watch: the node refused: " + e.getMessage());
+            return 1;
         }
         return 0;
     }

@@ -111,7 +111,7 @@ public final class SensorClient implements AutoCloseable {
     }
 
     /** Builds the packet for a batch. */
-    static EventPacket packet(String sensorId, long sequence, EventBatch batch) {
+    public static EventPacket packet(String sensorId, long sequence, EventBatch batch) {
         return EventPacket.newBuilder()
                 .setSensorId(sensorId)
                 .setSequence(sequence)

@@ -90,6 +90,60 @@ public final class SyntheticFeed {
     }
 
     /**
+     * A sink writing a recording, as if a node had received the packets: each arrives at the sensor
+     * time it ends (microseconds from the first packet), numbered from 0.
+     */
+    public static Sink recording(dev.afterglow.recording.RecordingWriter writer, String sensorId) {
+        return new Sink() {
+            private long sequence;
+            private long firstUs = -1;
+
+            @Override
+            public void events(EventBatch batch) throws IOException {
+                long end = batch.timeBaseUs + batch.maxT;
+                if (firstUs < 0) {
+                    firstUs = batch.timeBaseUs;
+                }
+                writer.write(end - firstUs, dev.afterglow.proto.v1.Envelope.newBuilder().setSchemaVersion(1)
+                        .setEvents(SensorClient.packet(sensorId, sequence++, batch)).build());
+            }
+
+            @Override
+            public void frame(SensorFrame frame) throws IOException {
+                writer.write(Math.max(0, frame.getExposureEndUs() - Math.max(0, firstUs)),
+                        dev.afterglow.proto.v1.Envelope.newBuilder().setSchemaVersion(1).setSensorFrame(frame).build());
+            }
+
+            @Override
+            public void flush() {
+            }
+        };
+    }
+
+    /** Both sinks, {@code a} first. */
+    public static Sink both(Sink a, Sink b) {
+        return new Sink() {
+            @Override
+            public void events(EventBatch batch) throws IOException {
+                a.events(batch);
+                b.events(batch);
+            }
+
+            @Override
+            public void frame(SensorFrame frame) throws IOException {
+                a.frame(frame);
+                b.frame(frame);
+            }
+
+            @Override
+            public void flush() throws IOException {
+                a.flush();
+                b.flush();
+            }
+        };
+    }
+
+    /**
      * Streams {@code seconds} of sensor time (0: until interrupted).
      *
      * @param speed sensor seconds per wall second (1: real time); 0: as fast as possible
