@@ -215,7 +215,7 @@ public final class SensorPipeline {
     }
 
     private static long frameTime(long k, double rateHz) {
-        return (long) Math.floor(k * 1e6 / rateHz + 1e-6);
+        return FrameGrid.frameTime(k, rateHz);
     }
 
     /** Sensor id. */
@@ -527,12 +527,8 @@ public final class SensorPipeline {
 
     private void startSchedule(long firstEventUs) {
         scheduleStarted = true;
-        frameIndex = (long) Math.ceil(firstEventUs * rateHz / 1e6 - 1e-9);
+        frameIndex = FrameGrid.firstIndexAfter(firstEventUs, rateHz);
         nextFrameUs = frameTime(frameIndex, rateHz);
-        if (nextFrameUs <= firstEventUs) {
-            frameIndex++;
-            nextFrameUs = frameTime(frameIndex, rateHz);
-        }
         windowStartUs = firstEventUs;
     }
 
@@ -587,40 +583,17 @@ public final class SensorPipeline {
                 apply(current);
                 break;
             }
-            int split = firstAtOrAfter(current, nextFrameUs);
+            int split = BatchSplit.firstAtOrAfter(current, nextFrameUs);
             if (split == current.size) { // maxT is only a bound: no event has reached the frame time yet
                 apply(current);
                 break;
             }
             EventBatch rest = current == batch ? tail : batch;
-            splitInto(current, split, rest);
+            BatchSplit.splitInto(current, split, rest);
             apply(current);
             emitDueFrames(rest.timeBaseUs + rest.t[0], packetNewestUs);
             current = rest;
         }
-    }
-
-    private static int firstAtOrAfter(EventBatch b, long timeUs) {
-        long limit = timeUs - b.timeBaseUs;
-        for (int i = 0; i < b.size; i++) {
-            if (b.t[i] >= limit) {
-                return i;
-            }
-        }
-        return b.size;
-    }
-
-    /** Moves events [split, size) of {@code from} into {@code to}; {@code from} keeps [0, split). */
-    private static void splitInto(EventBatch from, int split, EventBatch to) {
-        to.reset(from.timeBaseUs);
-        int n = from.size - split;
-        System.arraycopy(from.x, split, to.x, 0, n);
-        System.arraycopy(from.y, split, to.y, 0, n);
-        System.arraycopy(from.t, split, to.t, 0, n);
-        System.arraycopy(from.p, split, to.p, 0, n);
-        to.size = n;
-        to.maxT = from.maxT;
-        from.size = split;
     }
 
     private void apply(EventBatch b) {
@@ -698,16 +671,8 @@ public final class SensorPipeline {
         return publishUs - clockMapper.toHostUs(frameUs) > budgetUs;
     }
 
-    /** The largest grid index whose frame time is at or before {@code timeUs}. */
     private static long indexAtOrBefore(long timeUs, double rateHz) {
-        long k = (long) Math.floor(timeUs * rateHz / 1e6);
-        while (frameTime(k + 1, rateHz) <= timeUs) {
-            k++;
-        }
-        while (frameTime(k, rateHz) > timeUs) {
-            k--;
-        }
-        return k;
+        return FrameGrid.indexAtOrBefore(timeUs, rateHz);
     }
 
     private void onIdleTick() {

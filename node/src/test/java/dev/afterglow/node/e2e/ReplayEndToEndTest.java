@@ -10,7 +10,14 @@ import dev.afterglow.node.AfterglowNode;
 import dev.afterglow.node.client.SensorClient;
 import dev.afterglow.node.client.SubscriberClient;
 import dev.afterglow.node.config.NodeConfig;
+import dev.afterglow.filters.chain.Chain;
+import dev.afterglow.filters.readout.ToneMapper;
+import dev.afterglow.node.config.ToneMapText;
+import dev.afterglow.node.recording.OfflineRenderer;
 import dev.afterglow.node.recording.Replayer;
+import dev.afterglow.recording.RecordingReader;
+import java.nio.ByteBuffer;
+import java.nio.ByteOrder;
 import dev.afterglow.node.stats.NodeCounter;
 import dev.afterglow.proto.v1.Envelope;
 import dev.afterglow.proto.v1.EventPacket;
@@ -29,7 +36,8 @@ import org.junit.jupiter.api.io.TempDir;
 
 /**
  * A recording replayed into the real node on loopback as a sensor: the frames equal, bit for bit,
- * the same chain run in this process on the recorded packets; played twice, the node sees one
+ * the same chain run in this process on the recorded packets and the offline render of the
+ * recording; played again, the node sees one
  * continuous sensor (no clock restart) and every event of both passes.
  */
 @Timeout(value = 90, unit = TimeUnit.SECONDS)
@@ -101,6 +109,31 @@ class ReplayEndToEndTest {
             }
             StreamingEndToEndTest.assertEqualToInProcessChain(CHAIN, packets, frames);
             StreamingEndToEndTest.waitFor(() -> node.sensors().get("bench").counters().get(NodeCounter.EVENTS_TCP) == events);
+            assertRenderedOfflineAsPublished(recording, frames);
+        }
+    }
+
+    /** The offline renderer on the same recording, chain and rate gives the frames the node published, bit for bit. */
+    private static void assertRenderedOfflineAsPublished(Path recording, List<IntensityFrame> published) throws IOException {
+        List<float[]> rendered = new ArrayList<>();
+        List<Long> times = new ArrayList<>();
+        try (Chain chain = Chain.build(CHAIN, StreamingEndToEndTest.W, StreamingEndToEndTest.H);
+                RecordingReader reader = RecordingReader.open(recording)) {
+            new OfflineRenderer(chain, StreamingEndToEndTest.W, StreamingEndToEndTest.H, 100,
+                    new ToneMapper(ToneMapText.parse("tone-map", "percentile 1 99"))).run(reader, (index, timeUs, log, gray, facts) -> {
+                        rendered.add(log.clone());
+                        times.add(timeUs);
+                    }, t -> { });
+        }
+        assertTrue(rendered.size() >= published.size(), rendered.size() + " rendered, " + published.size() + " published");
+        for (int f = 0; f < published.size(); f++) {
+            IntensityFrame frame = published.get(f);
+            assertEquals(frame.getFrameTimeUs(), times.get(f), "frame " + f + " time");
+            ByteBuffer px = frame.getPixels().asReadOnlyByteBuffer().order(ByteOrder.LITTLE_ENDIAN);
+            for (int i = 0; i < rendered.get(f).length; i++) {
+                assertEquals(Float.floatToRawIntBits(px.getFloat(4 * i)), Float.floatToRawIntBits(rendered.get(f)[i]),
+                        "frame " + f + " pixel " + i);
+            }
         }
     }
 

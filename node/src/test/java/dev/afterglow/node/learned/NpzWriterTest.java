@@ -15,7 +15,7 @@ import org.junit.jupiter.api.io.TempDir;
  * reader of the format) with the same dtypes, shapes and values. Needs Debian's python3-numpy: in
  * CI (CI=true) its absence fails the test, elsewhere it skips.
  */
-class NpzWriterTest {
+public class NpzWriterTest {
     private static final Path PYTHON = Path.of("/usr/bin/python3");
 
     @Test
@@ -43,7 +43,7 @@ class NpzWriterTest {
                 "x <u2 (4,) [0, 1, 65535, 7]") + "\n", out);
     }
 
-    private static String python(String script, String arg) throws Exception {
+    public static String python(String script, String arg) throws Exception {
         boolean ci = "true".equals(System.getenv("CI"));
         boolean ok = Files.isExecutable(PYTHON)
                 && new ProcessBuilder(PYTHON.toString(), "-c", "import numpy").start().waitFor() == 0;
