@@ -41,6 +41,9 @@ public final class SensorConfig {
     /** Source networks (CIDR) from which unsealed UDP datagrams are accepted for this sensor. */
     public List<String> udpFrom = new ArrayList<>(List.of("127.0.0.0/8", "::1/128"));
 
+    /** Recording of what the sensor sends; null: none. */
+    public RecordConfig record;
+
     /** Parsed {@link #udpFrom}; valid after {@link #validate}. */
     AddressFilter udpSources;
 
@@ -72,6 +75,9 @@ public final class SensorConfig {
             udpFrom = new ArrayList<>();
         }
         udpSources = AddressFilter.parse(at + ".udp-from", udpFrom);
+        if (record != null) {
+            record.validate(at + ".record");
+        }
         if (chain == null || chain.isBlank()) {
             chain = AUTO;
         }
@@ -152,6 +158,7 @@ public final class SensorConfig {
         c.token = token;
         c.udpFrom = new ArrayList<>(udpFrom);
         c.udpSources = udpSources;
+        c.record = record == null ? null : record.copy();
         return c;
     }
 }

@@ -59,6 +59,7 @@ public final class TcpIngestHandler extends SimpleChannelInboundHandler<ByteBuf>
                 if (sensor == null) {
                     protocolError(ctx, "events before hello");
                 } else {
+                    sensor.record(arrival, envelope);
                     sensor.offerPacket(envelope.getEvents(), arrival, Transport.TCP);
                 }
             }
@@ -66,6 +67,7 @@ public final class TcpIngestHandler extends SimpleChannelInboundHandler<ByteBuf>
                 if (sensor == null) {
                     protocolError(ctx, "sensor frame before hello");
                 } else {
+                    sensor.record(arrival, envelope);
                     sensor.offerFrame(envelope.getSensorFrame());
                 }
             }
@@ -90,6 +92,7 @@ public final class TcpIngestHandler extends SimpleChannelInboundHandler<ByteBuf>
             return;
         }
         sensor = attach.pipeline();
+        sensor.recordHello(envelope.getHello(), clock.monotonicNanos());
     }
 
     private void protocolError(ChannelHandlerContext ctx, String what) {

@@ -66,12 +66,14 @@ public final class UdpIngestHandler extends SimpleChannelInboundHandler<Datagram
             case EVENTS -> {
                 SensorPipeline p = allowed(envelope.getEvents().getSensorId(), sealed, source);
                 if (p != null) {
+                    p.record(arrival, envelope);
                     p.offerPacket(envelope.getEvents(), arrival, Transport.UDP);
                 }
             }
             case SENSOR_FRAME -> {
                 SensorPipeline p = allowed(envelope.getSensorFrame().getSensorId(), sealed, source);
                 if (p != null) {
+                    p.record(arrival, envelope);
                     p.offerFrame(envelope.getSensorFrame());
                 }
             }

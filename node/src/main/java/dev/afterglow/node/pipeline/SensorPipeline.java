@@ -9,6 +9,9 @@ import dev.afterglow.filters.codec.EventPacketCodec;
 import dev.afterglow.filters.readout.ToneMapper;
 import dev.afterglow.filters.recon.FrameFusion;
 import dev.afterglow.filters.recon.InferringReconstruction;
+import dev.afterglow.node.recording.SensorRecorder;
+import dev.afterglow.proto.v1.Envelope;
+import dev.afterglow.proto.v1.SensorHello;
 import dev.afterglow.metrics.LatencyRecorder;
 import dev.afterglow.metrics.StageTimers;
 import dev.afterglow.node.config.SensorConfig;
@@ -136,6 +139,8 @@ public final class SensorPipeline {
     private long workMeanUs;
     /** Mean time of a readout (moving average over ~8 frames); a learned reconstruction's inferences make it large. */
     private long readoutMeanNanos;
+    /** Records what the sensor sends, on its own thread; null when the config records nothing. */
+    private final SensorRecorder recorder;
     /** Model inferences already added to the counters. */
     private long inferencesCounted;
     private double rateHz;
@@ -187,6 +192,7 @@ public final class SensorPipeline {
         this.log = new float[width * height];
         this.gray = new byte[width * height];
         this.live = new LiveTap(width, height, clock, counters);
+        this.recorder = config.record != null && config.record.enabled ? new SensorRecorder(config.id, config.record, counters) : null;
         applyConfig(config, Chain.build(config.chainSpec(), width, height));
     }
 
@@ -316,6 +322,9 @@ public final class SensorPipeline {
     /** Stops timers and releases the chain (on the pipeline thread, after the tasks already queued). */
     public void close() {
         connected = false;
+        if (recorder != null) {
+            recorder.close();
+        }
         try {
             loop.execute(() -> {
                 if (idleTimer != null) {
@@ -327,6 +336,34 @@ public final class SensorPipeline {
         } catch (java.util.concurrent.RejectedExecutionException e) {
             chain.close(); // the thread has stopped: nothing else uses the chain
         }
+    }
+
+    /**
+     * Records a message the sensor sent, if this sensor records (off the pipeline thread: it never
+     * waits on the disk). A UDP sensor's first message starts its recording with a hello made from
+     * the configuration. Any thread.
+     */
+    public void record(long arrivalNanos, Envelope envelope) {
+        if (recorder == null) {
+            return;
+        }
+        if (!recorder.started()) {
+            recorder.start(SensorHello.newBuilder().setSensorId(id).setWidth(width).setHeight(height)
+                    .setSendsFrames(config.sendsFrames()).build(), arrivalNanos);
+        }
+        recorder.offer(arrivalNanos, envelope);
+    }
+
+    /** Records a TCP sensor's hello (starting the recording on the first). Any thread. */
+    public void recordHello(SensorHello hello, long arrivalNanos) {
+        if (recorder != null) {
+            recorder.start(hello, arrivalNanos);
+        }
+    }
+
+    /** The sensor's recorder, or null when it records nothing. */
+    public SensorRecorder recorder() {
+        return recorder;
     }
 
     /**
