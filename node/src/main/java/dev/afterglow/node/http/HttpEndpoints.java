@@ -143,6 +143,7 @@ public final class HttpEndpoints extends SimpleChannelInboundHandler<FullHttpReq
             s.put("framesPublished", c.get(NodeCounter.FRAMES_PUBLISHED));
             s.put("pendingPackets", p.pendingPackets());
             s.put("lagSeconds", p.lagNanos() / 1e9);
+            s.put("recording", p.recorder() == null ? "off" : p.recorder().status());
             for (Subscription sub : publisher.subscriptions(p.id())) {
                 ObjectNode o = subscriberList.addObject();
                 o.put("sensor", sub.sensorId());

@@ -13,6 +13,7 @@ import dev.afterglow.node.config.ConfigException;
 import dev.afterglow.node.config.ControlConfig;
 import dev.afterglow.node.config.SensorConfig;
 import dev.afterglow.node.pipeline.SensorPipeline;
+import dev.afterglow.node.recording.SensorRecorder;
 import dev.afterglow.node.pipeline.SensorRegistry;
 import io.netty.handler.codec.http.FullHttpRequest;
 import io.netty.handler.codec.http.HttpHeaderNames;
@@ -55,8 +56,10 @@ public final class SensorSettingsEndpoint {
     /** Path prefix this endpoint serves. */
     public static final String PREFIX = "/config/sensors";
     private static final Set<String> KEYS = Set.of("chain", "set", "frame-rate-hz", "readout-every-events",
-            "latency-budget-ms", "tone-map");
+            "latency-budget-ms", "tone-map", "recording");
     private static final long APPLY_TIMEOUT_SECONDS = 5;
+    /** Suffix of the flight recorder's pin action: POST /config/sensors/ID/pin {"name": "..."}. */
+    private static final String PIN = "/pin";
 
     private final ControlConfig control;
     private final SensorRegistry sensors;
@@ -87,6 +90,9 @@ public final class SensorSettingsEndpoint {
                     ? jsonReply(HttpResponseStatus.OK, allSettings())
                     : methodNotAllowed("GET"));
         }
+        if (rest.endsWith(PIN)) {
+            return pin(request, rest.substring(1, rest.length() - PIN.length()));
+        }
         String id = rest.substring(1);
         SensorPipeline pipeline = sensors.get(id);
         if (pipeline == null) {
@@ -99,6 +105,43 @@ public final class SensorSettingsEndpoint {
             return done(methodNotAllowed("GET, PATCH"));
         }
         return change(pipeline, request.content().toString(StandardCharsets.UTF_8));
+    }
+
+    /** Pins the sensor's recording as it is now under a name; answers with the copies. */
+    private CompletableFuture<Reply> pin(FullHttpRequest request, String id) {
+        if (!HttpMethod.POST.equals(request.method())) {
+            return done(methodNotAllowed("POST"));
+        }
+        SensorPipeline pipeline = sensors.get(id);
+        if (pipeline == null) {
+            return done(Reply.text(HttpResponseStatus.NOT_FOUND, "no sensor '" + id + "'"));
+        }
+        SensorRecorder recorder = pipeline.recorder();
+        if (recorder == null) {
+            return done(Reply.text(HttpResponseStatus.CONFLICT, "sensor " + id + " is not recording"));
+        }
+        String name;
+        try {
+            JsonNode body = json.readTree(request.content().toString(StandardCharsets.UTF_8));
+            if (body == null || !body.isObject() || !body.path("name").isTextual()) {
+                return done(Reply.text(HttpResponseStatus.BAD_REQUEST, "the body must be {\"name\": \"...\"}"));
+            }
+            name = body.get("name").asText();
+        } catch (IOException e) {
+            return done(Reply.text(HttpResponseStatus.BAD_REQUEST, "the body is not valid JSON"));
+        }
+        return recorder.pin(name).orTimeout(60, TimeUnit.SECONDS).handle((copies, error) -> {
+            if (error == null) {
+                ObjectNode o = json.createObjectNode();
+                o.put("sensor", id).put("name", name);
+                ArrayNode files = o.putArray("files");
+                copies.forEach(p -> files.add(p.toString()));
+                return jsonReply(HttpResponseStatus.OK, o);
+            }
+            Throwable cause = error instanceof java.util.concurrent.CompletionException && error.getCause() != null ? error.getCause() : error;
+            return Reply.text(cause instanceof IllegalArgumentException ? HttpResponseStatus.BAD_REQUEST : HttpResponseStatus.CONFLICT,
+                    "pin: " + cause.getMessage());
+        });
     }
 
     private Reply checkAccess(FullHttpRequest request) {
@@ -223,6 +266,17 @@ public final class SensorSettingsEndpoint {
         if (request.has("set")) {
             next.setChain(setParameters(next.chainSpec(), request.get("set")).toString()); // an automatic chain becomes explicit
         }
+        if (request.has("recording")) {
+            JsonNode v = request.get("recording");
+            if (!v.isBoolean()) {
+                throw new ConfigException("recording=" + v + " is not true or false");
+            }
+            if (next.record == null) {
+                throw new ConfigException("recording: this sensor has no record settings in the node's configuration"
+                        + " (where and how to record are set there; over HTTP only on and off)");
+            }
+            next.record.enabled = v.booleanValue();
+        }
         return next;
     }
 
@@ -321,6 +375,11 @@ public final class SensorSettingsEndpoint {
         o.put("latency-budget-ms", c.latencyBudgetMs);
         o.put("readout-every-events", c.readoutEveryEvents);
         o.put("tone-map", c.toneMap);
+        if (c.record != null) {
+            o.put("recording", c.record.enabled);
+            SensorPipeline p = sensors.get(c.id);
+            o.put("recording-status", p == null || p.recorder() == null ? "off" : p.recorder().status());
+        }
         if (chainRestarted) {
             o.put("chain-restarted", true);
         }

@@ -139,8 +139,8 @@ public final class SensorPipeline {
     private long workMeanUs;
     /** Mean time of a readout (moving average over ~8 frames); a learned reconstruction's inferences make it large. */
     private long readoutMeanNanos;
-    /** Records what the sensor sends, on its own thread; null when the config records nothing. */
-    private final SensorRecorder recorder;
+    /** Records what the sensor sends, on its own thread; null when it records nothing. Swapped on the pipeline thread. */
+    private volatile SensorRecorder recorder;
     /** Model inferences already added to the counters. */
     private long inferencesCounted;
     private double rateHz;
@@ -192,12 +192,15 @@ public final class SensorPipeline {
         this.log = new float[width * height];
         this.gray = new byte[width * height];
         this.live = new LiveTap(width, height, clock, counters);
-        this.recorder = config.record != null && config.record.enabled ? new SensorRecorder(config.id, config.record, counters) : null;
         applyConfig(config, Chain.build(config.chainSpec(), width, height));
     }
 
     private void applyConfig(SensorConfig c, Chain built) {
         this.config = c;
+        boolean recording = c.record != null && c.record.enabled;
+        if (recording != (recorder != null)) {
+            switchRecording(recording);
+        }
         if (built != chain) {
             Chain old = chain;
             this.chain = built;
@@ -322,8 +325,9 @@ public final class SensorPipeline {
     /** Stops timers and releases the chain (on the pipeline thread, after the tasks already queued). */
     public void close() {
         connected = false;
-        if (recorder != null) {
-            recorder.close();
+        SensorRecorder r = recorder;
+        if (r != null) {
+            r.close();
         }
         try {
             loop.execute(() -> {
@@ -344,20 +348,40 @@ public final class SensorPipeline {
      * the configuration. Any thread.
      */
     public void record(long arrivalNanos, Envelope envelope) {
-        if (recorder == null) {
+        SensorRecorder r = recorder;
+        if (r == null) {
             return;
         }
-        if (!recorder.started()) {
-            recorder.start(SensorHello.newBuilder().setSensorId(id).setWidth(width).setHeight(height)
+        if (!r.started()) {
+            r.start(SensorHello.newBuilder().setSensorId(id).setWidth(width).setHeight(height)
                     .setSendsFrames(config.sendsFrames()).build(), arrivalNanos);
         }
-        recorder.offer(arrivalNanos, envelope);
+        r.offer(arrivalNanos, envelope);
     }
 
     /** Records a TCP sensor's hello (starting the recording on the first). Any thread. */
     public void recordHello(SensorHello hello, long arrivalNanos) {
-        if (recorder != null) {
-            recorder.start(hello, arrivalNanos);
+        SensorRecorder r = recorder;
+        if (r != null) {
+            r.start(hello, arrivalNanos);
+        }
+    }
+
+    /** Starts a new recording (with a hello made from the configuration) or stops the current one. */
+    private void switchRecording(boolean on) {
+        SensorRecorder old = recorder;
+        if (on) {
+            SensorRecorder r = new SensorRecorder(id, config.record, counters);
+            if (connected) { // switched on at run time: start now; otherwise at the sensor's hello
+                r.start(SensorHello.newBuilder().setSensorId(id).setWidth(width).setHeight(height)
+                        .setSendsFrames(config.sendsFrames()).build(), clock.monotonicNanos());
+            }
+            recorder = r;
+        } else {
+            recorder = null;
+            if (old != null) {
+                old.stopSoon();
+            }
         }
     }
 

@@ -183,6 +183,15 @@ public final class SensorRecorder implements AutoCloseable {
         return firstSegment;
     }
 
+    /** Asks the thread to write what is queued, close the files and end, without waiting. */
+    public void stopSoon() {
+        if (!queue.offer(STOP)) {
+            failed = true; // a full queue: new messages are dropped, and the thread ends once it reaches the stop
+            queue.clear();
+            queue.offer(STOP);
+        }
+    }
+
     /** Writes what is queued, closes the files and ends the thread (waits up to 10 s). */
     @Override
     public void close() {
