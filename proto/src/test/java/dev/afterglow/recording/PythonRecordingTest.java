@@ -3,10 +3,9 @@ package dev.afterglow.recording;
 import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertFalse;
 import static org.junit.jupiter.api.Assertions.assertTrue;
-import static org.junit.jupiter.api.Assertions.fail;
-import static org.junit.jupiter.api.Assumptions.assumeTrue;
 
 import dev.afterglow.proto.v1.Envelope;
+import dev.afterglow.proto.v1.PythonTools;
 import dev.afterglow.proto.v1.EventPacket;
 import dev.afterglow.proto.v1.SensorFrame;
 import java.io.IOException;
@@ -17,7 +16,6 @@ import java.nio.file.Files;
 import java.nio.file.Path;
 import java.util.ArrayList;
 import java.util.List;
-import java.util.concurrent.TimeUnit;
 import org.junit.jupiter.api.BeforeEach;
 import org.junit.jupiter.api.Test;
 import org.junit.jupiter.api.io.TempDir;
@@ -29,19 +27,18 @@ import org.junit.jupiter.api.io.TempDir;
  * both describe every envelope the same way.
  */
 class PythonRecordingTest {
-    private static final Path PYTHON = Path.of("/usr/bin/python3");
-    private static final Path PROTOC = Path.of("/usr/bin/protoc");
-    private static final long TIMEOUT_S = 120;
+    private static final Path PYTHON = PythonTools.PYTHON;
+    private static final Path PROTOC = PythonTools.PROTOC;
     @TempDir
     Path tmp;
     private Path generated;
 
     @BeforeEach
     void generatePythonClasses() throws Exception {
-        requireTool(Files.isExecutable(PYTHON), PYTHON + " is missing (Debian package python3)");
-        requireTool(Files.isExecutable(PROTOC), PROTOC + " is missing (Debian package protobuf-compiler)");
+        PythonTools.requireTool(Files.isExecutable(PYTHON), PYTHON + " is missing (Debian package python3)");
+        PythonTools.requireTool(Files.isExecutable(PROTOC), PROTOC + " is missing (Debian package protobuf-compiler)");
         for (String module : List.of("numpy", "google.protobuf", "crcmod.predefined")) {
-            requireTool(pythonImports(module), PYTHON + " cannot import " + module
+            PythonTools.requireTool(PythonTools.imports(module), PYTHON + " cannot import " + module
                     + " (Debian packages python3-numpy, python3-protobuf, python3-crcmod)");
         }
         generated = Files.createDirectories(tmp.resolve("generated"));
@@ -145,42 +142,8 @@ class PythonRecordingTest {
     }
 
     private void run(List<String> command) throws IOException, InterruptedException {
-        ProcessBuilder builder = new ProcessBuilder(command)
-                .redirectOutput(tmp.resolve("stdout.txt").toFile())
-                .redirectError(tmp.resolve("stderr.txt").toFile());
-        builder.environment().put("PYTHONDONTWRITEBYTECODE", "1");
-        builder.environment().put("PYTHONNOUSERSITE", "1");
-        builder.environment().put("PYTHONPATH", generated == null ? "" : generated.toString());
-        Process process = builder.start();
-        if (!process.waitFor(TIMEOUT_S, TimeUnit.SECONDS)) {
-            process.destroyForcibly();
-            fail(command + " did not finish within " + TIMEOUT_S + " s");
-        }
-        if (process.exitValue() != 0) {
-            fail(command + " exited with " + process.exitValue() + ":\n" + Files.readString(tmp.resolve("stderr.txt")));
-        }
-    }
-
-    private boolean pythonImports(String module) throws IOException, InterruptedException {
-        Process process = new ProcessBuilder(PYTHON.toString(), "-I", "-c", "import " + module)
-                .redirectOutput(ProcessBuilder.Redirect.DISCARD).redirectError(ProcessBuilder.Redirect.DISCARD).start();
-        if (!process.waitFor(TIMEOUT_S, TimeUnit.SECONDS)) {
-            process.destroyForcibly();
-            fail(PYTHON + " -c 'import " + module + "' did not finish within " + TIMEOUT_S + " s");
-        }
-        return process.exitValue() == 0;
-    }
-
-    /** Fails under CI (where .ci/run installs the tool), skips elsewhere. */
-    private static void requireTool(boolean present, String problem) {
-        if (present) {
-            return;
-        }
-        String message = problem + "; .ci/run installs it";
-        if ("true".equals(System.getenv("CI"))) {
-            fail(message + " (CI=true, so this is a failure, not a skip)");
-        }
-        assumeTrue(false, message + " (skipped outside CI)");
+        PythonTools.run(command, tmp.resolve("stdout.txt"), tmp.resolve("stderr.txt"),
+                java.util.Map.of("PYTHONNOUSERSITE", "1", "PYTHONPATH", generated == null ? "" : generated.toString()));
     }
 
     private static Path script() {

@@ -3,10 +3,8 @@ package dev.afterglow.node.cli;
 import dev.afterglow.node.client.ClientTls;
 import dev.afterglow.node.client.SensorClient;
 import dev.afterglow.node.recording.Replayer;
-import dev.afterglow.proto.v1.Envelope;
 import dev.afterglow.proto.v1.SensorHello;
 import dev.afterglow.recording.RecordingReader;
-import java.io.IOException;
 import java.nio.file.Path;
 import java.util.Locale;
 import java.util.concurrent.Callable;
@@ -59,17 +57,7 @@ public final class ReplayCommand implements Callable<Integer> {
         ClientTls clientTls = tls.clientTls();
         Replayer.Result result;
         try (SensorClient c = SensorClient.connect(target.host(), target.port(), h.build(), clientTls)) {
-            result = replayer.run(new Replayer.Target() {
-                @Override
-                public void send(Envelope envelope) throws IOException {
-                    c.send(envelope);
-                }
-
-                @Override
-                public void flush() throws IOException {
-                    c.flush();
-                }
-            });
+            result = replayer.run(Replayer.Target.of(c));
         }
         for (String p : result.problems()) {
             System.err.println("afterglow replay: " + p);

@@ -26,6 +26,21 @@ public final class Replayer {
 
         /** Called after each paced send and at the end: push out what is buffered. */
         void flush() throws IOException;
+
+        /** A TCP sensor connection as the target. */
+        static Target of(dev.afterglow.node.client.SensorClient client) {
+            return new Target() {
+                @Override
+                public void send(Envelope envelope) throws IOException {
+                    client.send(envelope);
+                }
+
+                @Override
+                public void flush() throws IOException {
+                    client.flush();
+                }
+            };
+        }
     }
 
     /** What a replay sent, and any damage found in the recording. */

@@ -125,17 +125,7 @@ class RecordingEndToEndTest {
             sub.setTimeoutMillis(20_000);
             StreamingEndToEndTest.waitFor(() -> second.publisher().count() == 1);
             try (SensorClient c = SensorClient.connect("127.0.0.1", second.ingestTcpPort(), "bench", W, H, false)) {
-                new Replayer(recording, 1, 0, 1).run(new Replayer.Target() {
-                    @Override
-                    public void send(Envelope envelope) throws IOException {
-                        c.send(envelope);
-                    }
-
-                    @Override
-                    public void flush() throws IOException {
-                        c.flush();
-                    }
-                });
+                new Replayer(recording, 1, 0, 1).run(Replayer.Target.of(c));
             }
             replayed = new ArrayList<>();
             for (int i = 0; i < frameCount; i++) {

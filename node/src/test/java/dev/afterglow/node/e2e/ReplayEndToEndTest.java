@@ -70,20 +70,6 @@ class ReplayEndToEndTest {
         return folder;
     }
 
-    private static Replayer.Target to(SensorClient c) {
-        return new Replayer.Target() {
-            @Override
-            public void send(Envelope envelope) throws IOException {
-                c.send(envelope);
-            }
-
-            @Override
-            public void flush() throws IOException {
-                c.flush();
-            }
-        };
-    }
-
     @Test
     void shouldPublishTheFramesOfTheRecordedPacketsBitForBit() throws Exception {
         List<EventBatch> packets = SceneEvents.packets(StreamingEndToEndTest.W, StreamingEndToEndTest.H, 600_000, 1_000, 23);
@@ -96,7 +82,7 @@ class ReplayEndToEndTest {
             Replayer.Result r;
             try (SensorClient c = SensorClient.connect("127.0.0.1", node.ingestTcpPort(),
                     SensorClient.hello("bench", StreamingEndToEndTest.W, StreamingEndToEndTest.H, false, ""))) {
-                r = new Replayer(recording, 1, 0, 1).run(to(c));
+                r = new Replayer(recording, 1, 0, 1).run(Replayer.Target.of(c));
             }
             long events = packets.stream().mapToLong(b -> b.size).sum();
             assertEquals(events, r.events());
@@ -146,7 +132,7 @@ class ReplayEndToEndTest {
             Replayer.Result r;
             try (SensorClient c = SensorClient.connect("127.0.0.1", node.ingestTcpPort(),
                     SensorClient.hello("bench", StreamingEndToEndTest.W, StreamingEndToEndTest.H, false, ""))) {
-                r = new Replayer(recording, 2, 0, 3).run(to(c));
+                r = new Replayer(recording, 2, 0, 3).run(Replayer.Target.of(c));
             }
             assertEquals(3 * events, r.events());
             assertTrue(r.seconds() > 0.4, "three passes of 0.3 s at twice the pace: " + r.seconds() + " s");

@@ -2,7 +2,6 @@ package dev.afterglow.proto.v1;
 
 import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.fail;
-import static org.junit.jupiter.api.Assumptions.assumeTrue;
 
 import com.google.protobuf.ByteString;
 import java.io.IOException;
@@ -13,7 +12,6 @@ import java.nio.file.Path;
 import java.util.ArrayList;
 import java.util.List;
 import java.util.SplittableRandom;
-import java.util.concurrent.TimeUnit;
 import org.junit.jupiter.api.Test;
 import org.junit.jupiter.api.io.TempDir;
 import org.junit.jupiter.params.ParameterizedTest;
@@ -29,8 +27,8 @@ import org.junit.jupiter.params.provider.ValueSource;
  * and are skipped elsewhere.
  */
 class PythonReaderTest {
-    private static final Path PYTHON = Path.of("/usr/bin/python3");
-    private static final Path PROTOC = Path.of("/usr/bin/protoc");
+    private static final Path PYTHON = PythonTools.PYTHON;
+    private static final Path PROTOC = PythonTools.PROTOC;
     private static final long TIMEOUT_S = 60;
 
     @TempDir
@@ -44,8 +42,8 @@ class PythonReaderTest {
     @ParameterizedTest(name = "time base {0} us")
     @ValueSource(longs = {5L, 5_000_000_123L})
     void shouldDecodeEventBytesWithOneNumpyFrombufferCall(long timeBaseUs) throws Exception {
-        requireTool(Files.isExecutable(PYTHON), PYTHON + " is missing (Debian package python3)");
-        requireTool(pythonImports("numpy"), PYTHON + " cannot import numpy (Debian package python3-numpy)");
+        PythonTools.requireTool(Files.isExecutable(PYTHON), PYTHON + " is missing (Debian package python3)");
+        PythonTools.requireTool(PythonTools.imports("numpy"), PYTHON + " cannot import numpy (Debian package python3-numpy)");
 
         Events sent = seededEvents(new SplittableRandom(77), 2_000);
         Path events = tmp.resolve("events.bin");
@@ -59,16 +57,16 @@ class PythonReaderTest {
 
     @Test
     void shouldParseDelimitedEnvelopesWithProtocGeneratedPython() throws Exception {
-        requireTool(Files.isExecutable(PYTHON), PYTHON + " is missing (Debian package python3)");
-        requireTool(pythonImports("numpy"), PYTHON + " cannot import numpy (Debian package python3-numpy)");
-        requireTool(Files.isExecutable(PROTOC), PROTOC + " is missing (Debian package protobuf-compiler)");
-        requireTool(pythonImports("google.protobuf"),
+        PythonTools.requireTool(Files.isExecutable(PYTHON), PYTHON + " is missing (Debian package python3)");
+        PythonTools.requireTool(PythonTools.imports("numpy"), PYTHON + " cannot import numpy (Debian package python3-numpy)");
+        PythonTools.requireTool(Files.isExecutable(PROTOC), PROTOC + " is missing (Debian package protobuf-compiler)");
+        PythonTools.requireTool(PythonTools.imports("google.protobuf"),
                 PYTHON + " cannot import google.protobuf (Debian package python3-protobuf)");
 
         Path generated = Files.createDirectories(tmp.resolve("generated"));
         Path protoRoot = moduleDir().resolve("src/main/proto");
-        run(List.of(PROTOC.toString(), "-I" + protoRoot, "--python_out=" + generated, "afterglow/v1/afterglow.proto"),
-                tmp.resolve("protoc.out"), tmp.resolve("protoc.err"));
+        PythonTools.run(List.of(PROTOC.toString(), "-I" + protoRoot, "--python_out=" + generated, "afterglow/v1/afterglow.proto"),
+                tmp.resolve("protoc.out"), tmp.resolve("protoc.err"), java.util.Map.of());
 
         long timeBaseUs = 7_000_000_000_000L;
         Events sent = seededEvents(new SplittableRandom(78), 300);
@@ -213,44 +211,7 @@ class PythonReaderTest {
         List<String> command = new ArrayList<>(List.of(PYTHON.toString(), "-I",
                 moduleDir().resolve("src/test/python/read_events.py").toString()));
         command.addAll(List.of(args));
-        run(command, tmp.resolve("python.out"), tmp.resolve("python.err"));
-    }
-
-    private static void run(List<String> command, Path stdout, Path stderr) throws IOException, InterruptedException {
-        ProcessBuilder builder = new ProcessBuilder(command).redirectOutput(stdout.toFile()).redirectError(stderr.toFile());
-        builder.environment().put("PYTHONDONTWRITEBYTECODE", "1");
-        Process process = builder.start();
-        if (!process.waitFor(TIMEOUT_S, TimeUnit.SECONDS)) {
-            process.destroyForcibly();
-            fail(command + " did not finish within " + TIMEOUT_S + " s");
-        }
-        if (process.exitValue() != 0) {
-            fail(command + " exited with " + process.exitValue() + ":\n" + Files.readString(stderr));
-        }
-    }
-
-    private boolean pythonImports(String module) throws IOException, InterruptedException {
-        Process process = new ProcessBuilder(PYTHON.toString(), "-I", "-c", "import " + module)
-                .redirectOutput(ProcessBuilder.Redirect.DISCARD)
-                .redirectError(ProcessBuilder.Redirect.DISCARD)
-                .start();
-        if (!process.waitFor(TIMEOUT_S, TimeUnit.SECONDS)) {
-            process.destroyForcibly();
-            fail(PYTHON + " -c 'import " + module + "' did not finish within " + TIMEOUT_S + " s");
-        }
-        return process.exitValue() == 0;
-    }
-
-    /** Fails under CI (where .ci/run installs the tool), skips elsewhere. */
-    private static void requireTool(boolean present, String problem) {
-        if (present) {
-            return;
-        }
-        String message = problem + "; .ci/run installs it";
-        if ("true".equals(System.getenv("CI"))) {
-            fail(message + " (CI=true, so this is a failure, not a skip)");
-        }
-        assumeTrue(false, message + " (skipped outside CI)");
+        PythonTools.run(command, tmp.resolve("python.out"), tmp.resolve("python.err"), java.util.Map.of());
     }
 
     /** The proto module's directory: Surefire sets basedir; a plain run starts there. */
