@@ -37,7 +37,7 @@ import model as ember  # noqa: E402
 import voxel  # noqa: E402
 
 REPO = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
-MODEL_OUT = os.path.join(REPO, "filters/src/main/resources/dev/afterglow/filters/learned/ember-1.onnx")
+MODEL_OUT = os.path.join(REPO, "filters/src/main/resources/dev/afterglow/filters/learned", ember.NAME + ".onnx")
 FIXTURES_OUT = os.path.join(REPO, "filters/src/test/resources/dev/afterglow/filters/learned")
 
 
@@ -247,6 +247,7 @@ def main():
     if args.export_only:
         net = ember.Ember()
         net.load_state_dict(torch.load(os.path.join(args.work, ember.NAME + ".pt")))
+        os.makedirs(os.path.dirname(args.out), exist_ok=True)
         export(net, args.out)
         write_fixtures(net, args, args.fixtures)
         print(f"exported {args.out} ({os.path.getsize(args.out)} bytes) and its fixtures")

@@ -11,7 +11,7 @@ import java.util.regex.Pattern;
  * quoted := '"' { any character but '"', '\' and control characters | '\"' | '\\' } '"'
  * </pre>
  *
- * A bare text needs no quotes: {@code model=/opt/models/ember-1.onnx}. Anything else (spaces,
+ * A bare text needs no quotes: {@code model=/opt/models/ember-2.onnx}. Anything else (spaces,
  * commas, parentheses, {@code |}, {@code =}, non-ASCII letters) goes in double quotes, with
  * {@code \"} for a quote and {@code \\} for a backslash: {@code model="/data/my models/a,b.onnx"}.
  * Canonical text writes a value bare when it can and quoted otherwise, so it parses back equal.

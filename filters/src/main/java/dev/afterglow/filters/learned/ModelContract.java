@@ -30,7 +30,7 @@ import java.util.regex.Pattern;
  * @param stateChannels S
  * @param stateDivisor D, the state's spatial downscale
  * @param padMultiple P, what the input's height and width are padded to a multiple of
- * @param modelName the model's own name, e.g. {@code ember-1}
+ * @param modelName the model's own name, e.g. {@code ember-2}
  */
 public record ModelContract(int bins, int stateChannels, int stateDivisor, int padMultiple, String modelName) {
     /** The contract version this node reads. */

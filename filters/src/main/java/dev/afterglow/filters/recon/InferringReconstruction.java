@@ -8,7 +8,7 @@ package dev.afterglow.filters.recon;
  */
 public interface InferringReconstruction extends Reconstruction {
 
-    /** The model's identity: its own name and the first 12 hex digits of its file's SHA-256, e.g. {@code ember-1@3f2a9c01b7d4}. */
+    /** The model's identity: its own name and the first 12 hex digits of its file's SHA-256, e.g. {@code ember-2@1d6cba2c8228}. */
     String modelIdentity();
 
     /**

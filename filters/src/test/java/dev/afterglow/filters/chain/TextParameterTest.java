@@ -19,7 +19,7 @@ class TextParameterTest {
     @Test
     void shouldReadBareAndQuotedTextAndFillTheDefault() {
         assertEquals("builtin", learned("").text("model"));
-        assertEquals("/opt/models/ember-1.onnx", learned("model=/opt/models/ember-1.onnx").text("model"));
+        assertEquals("/opt/models/ember-2.onnx", learned("model=/opt/models/ember-2.onnx").text("model"));
         assertEquals("./m_2+x@host:5%~.onnx", learned("model = ./m_2+x@host:5%~.onnx , threads=1").text("model"));
         assertEquals("/data/my models/a,b (v2) | c=d.onnx", learned("model=\"/data/my models/a,b (v2) | c=d.onnx\", rate=5Hz").text("model"));
         assertEquals("say \"hi\" \\ there", learned("model=\"say \\\"hi\\\" \\\\ there\"").text("model"));

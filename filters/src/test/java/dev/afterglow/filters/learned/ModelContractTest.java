@@ -21,7 +21,7 @@ class ModelContractTest {
         m.put("afterglow.state_channels", "16");
         m.put("afterglow.state_divisor", "4");
         m.put("afterglow.pad_multiple", "16");
-        m.put("afterglow.model_name", "ember-1");
+        m.put("afterglow.model_name", "ember-2");
         return m;
     }
 
@@ -42,7 +42,7 @@ class ModelContractTest {
     @Test
     void shouldReadTheMetadataAndPadToTheMultiple() {
         ModelContract c = ModelContract.read(LABEL, metadata());
-        assertEquals(new ModelContract(5, 16, 4, 16, "ember-1"), c);
+        assertEquals(new ModelContract(5, 16, 4, 16, "ember-2"), c);
         assertEquals(272, c.padded(260)); // 260 rounded up to a multiple of 16
         assertEquals(352, c.padded(346));
         assertEquals(480, c.padded(480));
