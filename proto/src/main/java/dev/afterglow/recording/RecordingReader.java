@@ -82,7 +82,7 @@ public final class RecordingReader implements Closeable {
                 continue;
             }
             try {
-                RecordedEnvelope e = RecordedEnvelope.parseFrom(r.payload());
+                RecordedEnvelope e = RecordedEnvelope.parseFrom(r.input()); // copies what it keeps: the buffer is reused
                 return new Item(e.getArrivalUs(), Envelope.parseFrom(e.getEnvelope()), reader.path(), r.offset());
             } catch (InvalidProtocolBufferException e) {
                 // The CRC matched, so the writer wrote it this way: report it and go on.

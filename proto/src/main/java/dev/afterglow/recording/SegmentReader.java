@@ -32,8 +32,21 @@ public final class SegmentReader implements Closeable {
         BAD_LENGTH,
     }
 
-    /** One record: its kind, offset in the file and payload. */
-    public record Record(int kind, long offset, byte[] payload) {
+    /**
+     * One record: its kind, offset in the file and payload, the first {@code length} bytes of
+     * {@code buffer}. The buffer is the reader's own and is reused by the next {@link #next} call:
+     * parse or copy the payload before that.
+     */
+    public record Record(int kind, long offset, byte[] buffer, int length) {
+        /** A copy of the payload. */
+        public byte[] payload() {
+            return java.util.Arrays.copyOf(buffer, length);
+        }
+
+        /** The payload as a protobuf input (no copy). */
+        public com.google.protobuf.CodedInputStream input() {
+            return com.google.protobuf.CodedInputStream.newInstance(buffer, 0, length);
+        }
     }
 
     private final Path path;
@@ -42,6 +55,8 @@ public final class SegmentReader implements Closeable {
     private final RecordingHeader header;
     private final ByteBuffer prefix = ByteBuffer.allocate(RecordFormat.PREFIX).order(ByteOrder.LITTLE_ENDIAN);
     private final ByteBuffer crc = ByteBuffer.allocate(RecordFormat.SUFFIX).order(ByteOrder.LITTLE_ENDIAN);
+    /** Reused for every record's payload; grows to the largest. */
+    private ByteBuffer payload = ByteBuffer.allocate(1 << 16);
     private long position;
     private Stop stop = Stop.NONE;
     private long stopOffset = -1;
@@ -69,7 +84,7 @@ public final class SegmentReader implements Closeable {
                         + (first == null ? describeStop() : "kind " + first.kind()) + ")");
             }
             try {
-                header = RecordingHeader.parseFrom(first.payload());
+                header = RecordingHeader.parseFrom(first.input());
             } catch (InvalidProtocolBufferException e) {
                 throw new RecordingFormatException(path + ": the header record does not parse: " + e.getMessage());
             }
@@ -109,7 +124,10 @@ public final class SegmentReader implements Closeable {
         if (at + RecordFormat.PREFIX + length + RecordFormat.SUFFIX > fileSize) {
             return halt(Stop.TORN, at);
         }
-        ByteBuffer payload = ByteBuffer.allocate((int) length);
+        if (payload.capacity() < length) {
+            payload = ByteBuffer.allocate((int) Math.min(RecordFormat.MAX_PAYLOAD, Math.max(length, 2L * payload.capacity())));
+        }
+        payload.clear().limit((int) length);
         crc.clear();
         if (!readFully(payload, at + RecordFormat.PREFIX) || !readFully(crc, at + RecordFormat.PREFIX + length)) {
             return halt(Stop.TORN, at);
@@ -119,7 +137,7 @@ public final class SegmentReader implements Closeable {
             return halt(Stop.CRC_MISMATCH, at);
         }
         position = at + RecordFormat.PREFIX + length + RecordFormat.SUFFIX;
-        return new Record(kind, at, payload.array());
+        return new Record(kind, at, payload.array(), (int) length);
     }
 
     /**

@@ -75,7 +75,8 @@ public final class RenderCommand implements Callable<Integer> {
                 csv.write("frame,grid_index,time_us,events_applied,events_dropped,readout_ns,inference_ns,model\n");
                 Progress progress = new Progress(span[0], span[1]);
                 long[] count = {0};
-                OfflineRenderer.Result r = new OfflineRenderer(built, w, h, rateHz, toneMapper).run(reader, (index, timeUs, log, g, facts) -> {
+                boolean needGray = gray != null || encoder != null || pngEvery > 0;
+                OfflineRenderer.Result r = new OfflineRenderer(built, w, h, rateHz, needGray ? toneMapper : null).run(reader, (index, timeUs, log, g, facts) -> {
                     long k = count[0]++;
                     csv.write(k + "," + index + "," + timeUs + "," + facts.eventsApplied() + "," + facts.eventsDropped() + ","
                             + facts.readoutNanos() + "," + facts.inferenceNanos() + "," + facts.model() + "\n");

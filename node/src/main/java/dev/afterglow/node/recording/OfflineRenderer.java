@@ -31,8 +31,8 @@ public final class OfflineRenderer {
     /** Where frames go. */
     public interface FrameOutput {
         /**
-         * One frame: its grid index, sensor time, the log image and its 8-bit tone map (both reused
-         * for the next frame: copy what you keep), and the frame's provenance.
+         * One frame: its grid index, sensor time, the log image and its 8-bit tone map (null without
+         * a tone mapper; both reused for the next frame: copy what you keep), and the frame's provenance.
          */
         void frame(long index, long timeUs, float[] log, byte[] gray, FrameFacts facts) throws IOException;
     }
@@ -67,7 +67,10 @@ public final class OfflineRenderer {
     private long dropped;
     private long frames;
 
-    /** @param chain built for {@code width} x {@code height}; the caller closes it */
+    /**
+     * @param chain built for {@code width} x {@code height}; the caller closes it
+     * @param toneMapper makes the 8-bit images; null when no output needs them (they stay null)
+     */
     public OfflineRenderer(Chain chain, int width, int height, double rateHz, ToneMapper toneMapper) {
         if (!(rateHz > 0) || rateHz > 10_000) {
             throw new IllegalArgumentException("--rate " + rateHz + " outside (0, 10000] Hz");
@@ -79,7 +82,7 @@ public final class OfflineRenderer {
         this.toneMapper = toneMapper;
         this.codec = new EventPacketCodec(width, height);
         this.log = new float[width * height];
-        this.gray = new byte[width * height];
+        this.gray = toneMapper == null ? null : new byte[width * height];
     }
 
     /**
@@ -189,7 +192,9 @@ public final class OfflineRenderer {
         while (nextFrameUs <= timeUs) {
             long r0 = System.nanoTime();
             chain.reconstruction().readLog(nextFrameUs, log);
-            toneMapper.apply(log, log.length, gray);
+            if (toneMapper != null) {
+                toneMapper.apply(log, log.length, gray);
+            }
             long readout = System.nanoTime() - r0;
             InferringReconstruction model = chain.reconstruction() instanceof InferringReconstruction m ? m : null;
             out.frame(frameIndex, nextFrameUs, log, gray, new FrameFacts(applied, dropped, readout,
