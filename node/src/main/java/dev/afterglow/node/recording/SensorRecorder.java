@@ -23,7 +23,7 @@ import java.util.concurrent.atomic.AtomicLong;
  * Records what one sensor sends, on a thread of its own so the live path never waits on the disk:
  * the I/O threads {@link #offer} messages into a queue bounded in bytes (a full queue drops and
  * counts), and the recorder thread writes them with a {@link RecordingWriter} into
- * FOLDER/SENSOR-ID/SENSOR-ID-yyyyMMdd-HHmmss-NNNNNN.agrec. A write error (disk full, a file
+ * FOLDER/SENSOR-ID/SENSOR-ID-yyyyMMdd-HHmmss-NNNNNN.agrec (the id made safe as a file name, see {@link #fileName}). A write error (disk full, a file
  * system error) stops the recording, counts it, logs one line and shows in {@link #status()}; the
  * sensor's live processing goes on. {@link #pin} copies the segments still on disk aside (a
  * flight recorder deletes old ones) into FOLDER/SENSOR-ID/pinned/NAME/.
@@ -59,7 +59,7 @@ public final class SensorRecorder implements AutoCloseable {
         this.config = config;
         this.counters = counters;
         this.maxQueuedBytes = (long) (config.queueMb * (1 << 20));
-        this.folder = Path.of(config.folder).resolve(sensorId);
+        this.folder = Path.of(config.folder).resolve(fileName(sensorId));
     }
 
     /**
@@ -110,8 +110,17 @@ public final class SensorRecorder implements AutoCloseable {
         return done;
     }
 
+    /**
+     * A sensor id (from the wire for an unlisted sensor: A-Z a-z 0-9 . _ : -) as a file name that
+     * stays inside the recordings folder: ':' becomes '_', and an id of dots only ("..") gets a '_' in front.
+     */
+    static String fileName(String sensorId) {
+        String safe = sensorId.replace(':', '_');
+        return safe.chars().allMatch(c -> c == '.') ? "_" + safe : safe;
+    }
+
     private void run(SensorHello hello, long startNanos) {
-        String name = sensorId.replace(':', '_') + "-" + STAMP.format(Instant.now());
+        String name = fileName(sensorId) + "-" + STAMP.format(Instant.now());
         RecordingWriter writer = null;
         try {
             writer = RecordingWriter.create(folder, name, hello, WRITER, System.currentTimeMillis() * 1000, config.settings());
