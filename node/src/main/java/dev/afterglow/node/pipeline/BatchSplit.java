@@ -2,7 +2,11 @@ package dev.afterglow.node.pipeline;
 
 import dev.afterglow.filters.EventBatch;
 
-/** Splitting an event batch at a frame time, so the events before it are applied before the frame is read out. */
+/**
+ * Splitting an event batch at a frame time, so the events before it are applied before the frame is
+ * read out, and dropping the events older than the last frame: the live pipeline and the offline
+ * renderer share these, so they treat events alike.
+ */
 public final class BatchSplit {
     private BatchSplit() {
     }
@@ -29,5 +33,25 @@ public final class BatchSplit {
         to.size = n;
         to.maxT = from.maxT;
         from.size = split;
+    }
+
+    /** Removes the events before {@code timeUs} (keeping the others in order); returns how many were removed. */
+    public static int dropBefore(EventBatch b, long timeUs) {
+        if (b.timeBaseUs >= timeUs) {
+            return 0;
+        }
+        long limit = timeUs - b.timeBaseUs;
+        int kept = 0;
+        int n = b.size;
+        for (int i = 0; i < n; i++) {
+            if (b.t[i] >= limit) {
+                if (kept != i) {
+                    b.move(i, kept);
+                }
+                kept++;
+            }
+        }
+        b.size = kept;
+        return n - kept;
     }
 }

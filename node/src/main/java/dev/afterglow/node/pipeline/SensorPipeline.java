@@ -615,23 +615,12 @@ public final class SensorPipeline {
 
     /** Drops events older than the last published frame. */
     private void dropLate() {
-        if (lastFrameUs == Long.MIN_VALUE || batch.timeBaseUs >= lastFrameUs) {
+        if (lastFrameUs == Long.MIN_VALUE) {
             return;
         }
-        long limit = lastFrameUs - batch.timeBaseUs;
-        int kept = 0;
-        int n = batch.size;
-        for (int i = 0; i < n; i++) {
-            if (batch.t[i] >= limit) {
-                if (kept != i) {
-                    batch.move(i, kept);
-                }
-                kept++;
-            }
-        }
-        batch.size = kept;
-        counters.add(NodeCounter.EVENTS_LATE, n - kept);
-        droppedSinceFrame += n - kept;
+        int dropped = BatchSplit.dropBefore(batch, lastFrameUs);
+        counters.add(NodeCounter.EVENTS_LATE, dropped);
+        droppedSinceFrame += dropped;
     }
 
     /** Applies the batch, publishing every frame whose time falls inside or before it. */

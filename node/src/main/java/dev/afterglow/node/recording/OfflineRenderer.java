@@ -144,21 +144,9 @@ public final class OfflineRenderer {
     }
 
     private void dropLate() {
-        if (lastFrameUs == Long.MIN_VALUE || batch.timeBaseUs >= lastFrameUs) {
-            return;
+        if (lastFrameUs != Long.MIN_VALUE) {
+            dropped += BatchSplit.dropBefore(batch, lastFrameUs);
         }
-        long limit = lastFrameUs - batch.timeBaseUs;
-        int kept = 0;
-        for (int i = 0; i < batch.size; i++) {
-            if (batch.t[i] >= limit) {
-                if (kept != i) {
-                    batch.move(i, kept);
-                }
-                kept++;
-            }
-        }
-        dropped += batch.size - kept;
-        batch.size = kept;
     }
 
     private void applyWithFrames(FrameOutput out, java.util.function.LongConsumer progress) throws IOException {
