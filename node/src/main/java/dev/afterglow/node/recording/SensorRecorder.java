@@ -48,7 +48,8 @@ public final class SensorRecorder implements AutoCloseable {
     private final AtomicLong queuedBytes = new AtomicLong();
     private final long maxQueuedBytes;
     private final Path folder;
-    private Thread thread;
+    /** Written under the lock in {@link #start}; read without it on I/O threads. */
+    private volatile Thread thread;
     private volatile boolean failed;
     private volatile String status = "waiting for the sensor";
     private volatile Path firstSegment;
@@ -80,7 +81,7 @@ public final class SensorRecorder implements AutoCloseable {
     }
 
     /** True once started (a hello came). */
-    public synchronized boolean started() {
+    public boolean started() {
         return thread != null;
     }
 
@@ -195,9 +196,16 @@ public final class SensorRecorder implements AutoCloseable {
     /** Asks the thread to write what is queued, close the files and end, without waiting. */
     public void stopSoon() {
         if (!queue.offer(STOP)) {
-            failed = true; // a full queue: new messages are dropped, and the thread ends once it reaches the stop
-            queue.clear();
-            queue.offer(STOP);
+            // A full queue: wait for room on a helper thread, not on the caller's (the pipeline's).
+            Thread helper = new Thread(() -> {
+                try {
+                    queue.put(STOP);
+                } catch (InterruptedException e) {
+                    Thread.currentThread().interrupt();
+                }
+            }, "afterglow-recorder-stop-" + sensorId);
+            helper.setDaemon(true);
+            helper.start();
         }
     }
 

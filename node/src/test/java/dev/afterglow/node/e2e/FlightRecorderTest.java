@@ -41,13 +41,15 @@ class FlightRecorderTest {
                 .build(), HttpResponse.BodyHandlers.ofString());
     }
 
-    private static long dirBytes(Path folder) throws Exception {
+    private static long dirBytes(Path folder) {
         try (var files = Files.list(folder)) {
             long sum = 0;
             for (Path p : files.filter(Files::isRegularFile).toList()) {
                 sum += Files.size(p);
             }
             return sum;
+        } catch (java.io.IOException e) {
+            throw new java.io.UncheckedIOException(e);
         }
     }
 
@@ -72,6 +74,8 @@ class FlightRecorderTest {
                 sensor.flush();
                 StreamingEndToEndTest.waitFor(() -> counters.get(NodeCounter.RECORDED_MESSAGES) == packets.size() + 1);
                 Path ring = folder.resolve("bench");
+                // the last records reach the files at the recorder's next flush (flush-ms 50, polled every 100 ms)
+                StreamingEndToEndTest.waitFor(() -> dirBytes(ring) >= 200 * 1024);
                 long onDisk = dirBytes(ring);
                 assertTrue(onDisk >= 200 * 1024 && onDisk <= 260 * 1024, "the newest 200 kB plus at most one segment: " + onDisk);
                 String status = HttpEndpointsTest.get(HttpClient.newHttpClient(), http, "/status").body();

@@ -150,6 +150,7 @@ class RecordingEndToEndTest {
             SensorRecorder recorder = node.sensors().get("bench").recorder();
             Runnable fillTheDisk = () -> {
                 try {
+                    StreamingEndToEndTest.waitFor(() -> recorder.firstSegment() != null);
                     String first = recorder.firstSegment().getFileName().toString();
                     String stem = first.substring(0, first.length() - "000000.agrec".length());
                     int newest = 0;
@@ -169,6 +170,9 @@ class RecordingEndToEndTest {
                     }
                 } catch (IOException e) {
                     throw new java.io.UncheckedIOException(e);
+                } catch (InterruptedException e) {
+                    Thread.currentThread().interrupt();
+                    throw new AssertionError(e);
                 }
             };
             List<IntensityFrame> frames = stream(node, packets, (int) (lastEventUs / 10_000), fillTheDisk);
