@@ -59,16 +59,14 @@ public final class TcpIngestHandler extends SimpleChannelInboundHandler<ByteBuf>
                 if (sensor == null) {
                     protocolError(ctx, "events before hello");
                 } else {
-                    sensor.record(arrival, envelope);
-                    sensor.offerPacket(envelope.getEvents(), arrival, Transport.TCP);
+                    sensor.events(envelope, arrival, Transport.TCP);
                 }
             }
             case SENSOR_FRAME -> {
                 if (sensor == null) {
                     protocolError(ctx, "sensor frame before hello");
                 } else {
-                    sensor.record(arrival, envelope);
-                    sensor.offerFrame(envelope.getSensorFrame());
+                    sensor.sensorFrame(envelope, arrival);
                 }
             }
             default -> protocolError(ctx, "unexpected " + envelope.getBodyCase() + " on an ingest connection");
@@ -92,7 +90,7 @@ public final class TcpIngestHandler extends SimpleChannelInboundHandler<ByteBuf>
             return;
         }
         sensor = attach.pipeline();
-        sensor.recordHello(envelope.getHello(), clock.monotonicNanos());
+        sensor.hello(envelope.getHello(), clock.monotonicNanos());
     }
 
     private void protocolError(ChannelHandlerContext ctx, String what) {

@@ -66,15 +66,13 @@ public final class UdpIngestHandler extends SimpleChannelInboundHandler<Datagram
             case EVENTS -> {
                 SensorPipeline p = allowed(envelope.getEvents().getSensorId(), sealed, source);
                 if (p != null) {
-                    p.record(arrival, envelope);
-                    p.offerPacket(envelope.getEvents(), arrival, Transport.UDP);
+                    p.events(envelope, arrival, Transport.UDP);
                 }
             }
             case SENSOR_FRAME -> {
                 SensorPipeline p = allowed(envelope.getSensorFrame().getSensorId(), sealed, source);
                 if (p != null) {
-                    p.record(arrival, envelope);
-                    p.offerFrame(envelope.getSensorFrame());
+                    p.sensorFrame(envelope, arrival);
                 }
             }
             default -> nodeCounters.increment(NodeCounter.PROTOCOL_ERRORS);

@@ -65,7 +65,7 @@ import java.util.concurrent.atomic.AtomicInteger;
  * and every other sensor. {@link #stalledForNanos} lets a watchdog see a pipeline that has work
  * and makes no progress.
  */
-public final class SensorPipeline {
+public final class SensorPipeline implements SensorInput {
     /** A jump back by more than this many microseconds of sensor time is off the sensor's timeline. */
     public static final long RESTART_THRESHOLD_US = SensorTimeline.RESTART_THRESHOLD_US;
     /** Largest accepted sensor time (time base, frame exposure), about 142 years of microseconds. */
@@ -342,12 +342,32 @@ public final class SensorPipeline {
         }
     }
 
+    @Override
+    public void hello(SensorHello hello, long arrivalNanos) {
+        SensorRecorder r = recorder;
+        if (r != null) {
+            r.start(hello, arrivalNanos);
+        }
+    }
+
+    @Override
+    public boolean events(Envelope envelope, long arrivalNanos, Transport transport) {
+        record(arrivalNanos, envelope);
+        return offerPacket(envelope.getEvents(), arrivalNanos, transport);
+    }
+
+    @Override
+    public void sensorFrame(Envelope envelope, long arrivalNanos) {
+        record(arrivalNanos, envelope);
+        offerFrame(envelope.getSensorFrame());
+    }
+
     /**
      * Records a message the sensor sent, if this sensor records (off the pipeline thread: it never
      * waits on the disk). A UDP sensor's first message starts its recording with a hello made from
-     * the configuration. Any thread.
+     * the configuration.
      */
-    public void record(long arrivalNanos, Envelope envelope) {
+    private void record(long arrivalNanos, Envelope envelope) {
         SensorRecorder r = recorder;
         if (r == null) {
             return;
@@ -357,14 +377,6 @@ public final class SensorPipeline {
                     .setSendsFrames(config.sendsFrames()).build(), arrivalNanos);
         }
         r.offer(arrivalNanos, envelope);
-    }
-
-    /** Records a TCP sensor's hello (starting the recording on the first). Any thread. */
-    public void recordHello(SensorHello hello, long arrivalNanos) {
-        SensorRecorder r = recorder;
-        if (r != null) {
-            r.start(hello, arrivalNanos);
-        }
     }
 
     /** Starts a new recording (with a hello made from the configuration) or stops the current one. */
