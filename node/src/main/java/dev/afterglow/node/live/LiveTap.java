@@ -27,7 +27,7 @@ import java.util.Arrays;
  * <p>Threading: {@link #accumulate} and {@link #onFrame} run only on the sensor's pipeline
  * thread; {@link #add}, {@link #remove} and {@link #watching} from any thread.
  */
-public final class LiveTap {
+public final class LiveTap implements dev.afterglow.node.publish.FrameSink {
     private static final LiveViewer[] NONE = {};
 
     private final LiveRaster raster;
@@ -113,6 +113,16 @@ public final class LiveTap {
      * Sends the frame to each viewer whose turn has come. Pipeline thread, during publishing (the
      * frame's arrays are valid only now).
      */
+    @Override
+    public boolean wantsFrames() {
+        return watching();
+    }
+
+    @Override
+    public void accept(FrameData frame) {
+        onFrame(frame);
+    }
+
     public void onFrame(FrameData frame) {
         LiveViewer[] v = viewers;
         if (!active(v)) {

@@ -17,6 +17,7 @@ import dev.afterglow.metrics.StageTimers;
 import dev.afterglow.node.config.SensorConfig;
 import dev.afterglow.node.config.ToneMapText;
 import dev.afterglow.node.live.LiveTap;
+import dev.afterglow.node.publish.FrameSink;
 import dev.afterglow.node.publish.FrameData;
 import dev.afterglow.node.publish.FramePublisher;
 import dev.afterglow.node.stats.Counters;
@@ -77,7 +78,6 @@ public final class SensorPipeline implements SensorInput {
     private final int width;
     private final int height;
     private final EventLoop loop;
-    private final FramePublisher publisher;
     private final NodeClock clock;
     private final Counters counters;
     private final int maxPending;
@@ -125,6 +125,8 @@ public final class SensorPipeline implements SensorInput {
     private final LatencyRecorder inferenceDuration = new LatencyRecorder();
     private volatile long lagNanos;
     private final LiveTap live;
+    /** Where frames go: the subscribers, then the live view. */
+    private final List<FrameSink> sinks;
 
     private volatile SensorConfig config;
     private volatile Chain chain;
@@ -176,7 +178,6 @@ public final class SensorPipeline implements SensorInput {
         this.width = config.width;
         this.height = config.height;
         this.loop = loop;
-        this.publisher = publisher;
         this.clock = clock;
         this.counters = counters;
         this.maxPending = maxPendingPackets;
@@ -192,6 +193,8 @@ public final class SensorPipeline implements SensorInput {
         this.log = new float[width * height];
         this.gray = new byte[width * height];
         this.live = new LiveTap(width, height, clock, counters);
+        // The subscribers first: a frame's publish age is theirs, and a live view page does not count as one.
+        this.sinks = List.of(publisher.sinkFor(id, counters, readoutToSocket, sensorToPublish, clock::monotonicNanos), live);
         applyConfig(config, Chain.build(config.chainSpec(), width, height));
     }
 
@@ -777,8 +780,17 @@ public final class SensorPipeline implements SensorInput {
         }
     }
 
+    private boolean wanted() {
+        for (int i = 0; i < sinks.size(); i++) {
+            if (sinks.get(i).wantsFrames()) {
+                return true;
+            }
+        }
+        return false;
+    }
+
     private void readoutAndPublish(long frameTimeUs, long gridIndex) {
-        if (!publisher.hasSubscribers(id) && !live.watching()) {
+        if (!wanted()) {
             // Nobody to show it to: skip the readout (the reconstruction's state does not depend on it).
             counters.increment(NodeCounter.FRAMES_UNREAD);
             chain.reconstruction().readoutSkipped(frameTimeUs);
@@ -832,10 +844,10 @@ public final class SensorPipeline implements SensorInput {
         }
         FrameData frame = new FrameData(id, seq, gridIndex, frameTimeUs, windowStartUs, width, height, rateHz,
                 log, this::gray8, p.build(), clockMapper.toHostUs(frameTimeUs), newestArrivalUs, r0, readoutNanos);
-        publisher.publish(frame, counters, readoutToSocket);
         readoutDuration.recordNanos(readoutNanos);
-        sensorToPublish.recordNanos(clock.monotonicNanos() - frame.frameHostUs() * 1000);
-        live.onFrame(frame); // after the latency record: a live view page does not count as a subscriber
+        for (int i = 0; i < sinks.size(); i++) {
+            sinks.get(i).accept(frame);
+        }
         endWindow(frameTimeUs);
     }
 

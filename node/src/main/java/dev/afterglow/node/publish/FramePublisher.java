@@ -76,6 +76,27 @@ public final class FramePublisher {
         return list != null && !list.isEmpty();
     }
 
+    /**
+     * The sink of one sensor's subscribers: each frame is published to them (counted in
+     * {@code sensorCounters}, socket writes timed into {@code writeLatency}), then its age from
+     * sensor time to publishing goes to {@code publishAge}.
+     */
+    public FrameSink sinkFor(String sensorId, Counters sensorCounters, LatencyRecorder writeLatency,
+            LatencyRecorder publishAge, java.util.function.LongSupplier monotonicNanos) {
+        return new FrameSink() {
+            @Override
+            public boolean wantsFrames() {
+                return hasSubscribers(sensorId);
+            }
+
+            @Override
+            public void accept(FrameData frame) {
+                publish(frame, sensorCounters, writeLatency);
+                publishAge.recordNanos(monotonicNanos.getAsLong() - frame.frameHostUs() * 1000);
+            }
+        };
+    }
+
     /** Number of subscriptions over all sensors. */
     public int count() {
         int n = 0;
