@@ -21,8 +21,8 @@ import java.util.stream.Stream;
  */
 public final class RecordingReader implements Closeable {
 
-    /** One recorded envelope: its arrival time, the envelope, and where it is stored. */
-    public record Item(long arrivalUs, Envelope envelope, Path segment, long offset) {
+    /** One recorded envelope: its arrival time, the envelope, its bytes exactly as received, and where it is stored. */
+    public record Item(long arrivalUs, Envelope envelope, com.google.protobuf.ByteString bytes, Path segment, long offset) {
     }
 
     private final List<Path> segments;
@@ -83,7 +83,7 @@ public final class RecordingReader implements Closeable {
             }
             try {
                 RecordedEnvelope e = RecordedEnvelope.parseFrom(r.input()); // copies what it keeps: the buffer is reused
-                return new Item(e.getArrivalUs(), Envelope.parseFrom(e.getEnvelope()), reader.path(), r.offset());
+                return new Item(e.getArrivalUs(), Envelope.parseFrom(e.getEnvelope()), e.getEnvelope(), reader.path(), r.offset());
             } catch (InvalidProtocolBufferException e) {
                 // The CRC matched, so the writer wrote it this way: report it and go on.
                 problems.add(reader.path() + ": record at byte " + r.offset() + " does not parse: " + e.getMessage());

@@ -105,6 +105,17 @@ public final class SensorClient implements AutoCloseable {
         envelope.writeDelimitedTo(out);
     }
 
+    /** Sends an envelope already serialized (e.g. from a recording) with its length prefix; not flushed. */
+    public void sendSerialized(com.google.protobuf.ByteString envelope) throws IOException {
+        int n = envelope.size();
+        while ((n & ~0x7F) != 0) { // base-128 varint, as writeDelimitedTo writes it
+            out.write((n & 0x7F) | 0x80);
+            n >>>= 7;
+        }
+        out.write(n);
+        envelope.writeTo(out);
+    }
+
     /** Writes buffered messages to the socket. */
     public void flush() throws IOException {
         out.flush();

@@ -24,6 +24,11 @@ public final class Replayer {
     public interface Target {
         void send(Envelope envelope) throws IOException;
 
+        /** Sends an envelope as recorded, already serialized (no re-encoding); by default parsed and sent. */
+        default void sendSerialized(com.google.protobuf.ByteString envelope) throws IOException {
+            send(Envelope.parseFrom(envelope));
+        }
+
         /** Called after each paced send and at the end: push out what is buffered. */
         void flush() throws IOException;
 
@@ -33,6 +38,11 @@ public final class Replayer {
                 @Override
                 public void send(Envelope envelope) throws IOException {
                     client.send(envelope);
+                }
+
+                @Override
+                public void sendSerialized(com.google.protobuf.ByteString envelope) throws IOException {
+                    client.sendSerialized(envelope);
                 }
 
                 @Override
@@ -128,7 +138,11 @@ public final class Replayer {
                         }
                         frames++;
                     }
-                    target.send(e);
+                    if (pass == 0) {
+                        target.sendSerialized(item.bytes()); // as recorded, byte for byte
+                    } else {
+                        target.send(e);
+                    }
                     envelopes++;
                     if (speed > 0) {
                         target.flush();
