@@ -30,6 +30,8 @@ public final class SensorClient implements AutoCloseable {
 
     private final Socket socket;
     private final OutputStream out;
+    /** Reused by {@link #sendSerialized}. */
+    private byte[] scratch = new byte[1 << 16];
     private final String sensorId;
     private long sequence;
 
@@ -113,7 +115,12 @@ public final class SensorClient implements AutoCloseable {
             n >>>= 7;
         }
         out.write(n);
-        envelope.writeTo(out);
+        // ByteString.writeTo(OutputStream) hands out a fresh copy each time; one reused buffer is cheaper
+        if (scratch.length < envelope.size()) {
+            scratch = new byte[Math.max(envelope.size(), 2 * scratch.length)];
+        }
+        envelope.copyTo(scratch, 0);
+        out.write(scratch, 0, envelope.size());
     }
 
     /** Writes buffered messages to the socket. */
