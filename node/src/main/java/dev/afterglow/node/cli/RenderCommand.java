@@ -59,8 +59,8 @@ public final class RenderCommand implements Callable<Integer> {
             throw new IllegalArgumentException("--npy=" + npy + ": gray8, log, both or none");
         }
         ToneMapper toneMapper = new ToneMapper(ToneMapText.parse("--tone-map", toneMap));
-        long[] span = sensorSpan(in);
         try (RecordingReader reader = RecordingReader.open(in)) {
+            long[] span = sensorSpan(reader.segments());
             SensorHello hello = reader.header().getHello();
             int w = hello.getWidth();
             int h = hello.getHeight();
@@ -106,20 +106,18 @@ public final class RenderCommand implements Callable<Integer> {
         }
     }
 
-    /** First and last sensor time in the recording's index (for the progress bar); 0, 1 if it has none. */
-    private static long[] sensorSpan(Path recording) throws IOException {
+    /** First and last sensor time in the segments' indexes (for the progress bar); 0, 1 if they have none. */
+    private static long[] sensorSpan(java.util.List<Path> segments) {
         long first = Long.MAX_VALUE;
         long last = Long.MIN_VALUE;
-        try (RecordingReader r = RecordingReader.open(recording)) {
-            for (Path segment : r.segments()) {
-                try (SegmentReader s = new SegmentReader(segment)) {
-                    for (var e : s.readIndex()) {
-                        first = Math.min(first, e.getSensorTimeUs());
-                        last = Math.max(last, e.getSensorTimeUs());
-                    }
-                } catch (IOException e) {
-                    // no index from a damaged segment: the bar is only approximate
+        for (Path segment : segments) {
+            try (SegmentReader s = new SegmentReader(segment)) {
+                for (var e : s.readIndex()) {
+                    first = Math.min(first, e.getSensorTimeUs());
+                    last = Math.max(last, e.getSensorTimeUs());
                 }
+            } catch (IOException e) {
+                // no index from a damaged segment: the bar is only approximate
             }
         }
         return first <= last ? new long[] {first, last} : new long[] {0, 1};

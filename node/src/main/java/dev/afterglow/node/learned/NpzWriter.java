@@ -2,10 +2,8 @@ package dev.afterglow.node.learned;
 
 import java.io.BufferedOutputStream;
 import java.io.IOException;
-import java.io.OutputStream;
 import java.nio.ByteBuffer;
 import java.nio.ByteOrder;
-import java.nio.charset.StandardCharsets;
 import java.nio.file.Files;
 import java.nio.file.Path;
 import java.util.zip.ZipEntry;
@@ -78,33 +76,19 @@ public final class NpzWriter implements AutoCloseable {
 
     private void entry(String name, String dtype, int[] shape, ByteBuffer data) throws IOException {
         long elements = 1;
-        StringBuilder dims = new StringBuilder("(");
-        for (int d : shape) {
-            elements *= d;
-            dims.append(d).append(", ");
+        long[] dims = new long[shape.length];
+        for (int i = 0; i < shape.length; i++) {
+            elements *= shape[i];
+            dims[i] = shape[i];
         }
-        if (shape.length > 1) {
-            dims.setLength(dims.length() - 2);
-        } else if (shape.length == 1) {
-            dims.setLength(dims.length() - 1); // "(n,)"
-        }
-        dims.append(')');
         int itemSize = dtype.endsWith("8") ? 8 : dtype.endsWith("4") ? 4 : dtype.endsWith("2") ? 2 : 1;
         if (elements * itemSize != data.position()) {
-            throw new IllegalArgumentException(name + ": shape " + dims + " holds " + elements + " values, "
-                    + data.position() / itemSize + " given");
+            throw new IllegalArgumentException(name + ": shape " + java.util.Arrays.toString(shape) + " holds " + elements
+                    + " values, " + data.position() / itemSize + " given");
         }
-        String dict = "{'descr': '" + dtype + "', 'fortran_order': False, 'shape': " + dims + ", }";
-        int unpadded = 6 + 2 + 2 + dict.length() + 1;
-        int padded = (unpadded + 63) / 64 * 64;
-        String header = dict + " ".repeat(padded - unpadded) + "\n";
         zip.putNextEntry(new ZipEntry(name + ".npy"));
-        OutputStream out = zip;
-        out.write(new byte[] {(byte) 0x93, 'N', 'U', 'M', 'P', 'Y', 1, 0});
-        int len = header.length();
-        out.write(new byte[] {(byte) len, (byte) (len >>> 8)});
-        out.write(header.getBytes(StandardCharsets.US_ASCII));
-        out.write(data.array(), 0, data.position());
+        zip.write(NpyHeader.of(dtype, dims, 0));
+        zip.write(data.array(), 0, data.position());
         zip.closeEntry();
     }
 

@@ -376,10 +376,15 @@ public final class SensorPipeline implements SensorInput {
             return;
         }
         if (!r.started()) {
-            r.start(SensorHello.newBuilder().setSensorId(id).setWidth(width).setHeight(height)
-                    .setSendsFrames(config.sendsFrames()).build(), arrivalNanos);
+            r.start(configHello(), arrivalNanos);
         }
         r.offer(arrivalNanos, envelope);
+    }
+
+    /** The hello a recording starts with when the sensor sent none (UDP, or recording switched on while connected). */
+    private SensorHello configHello() {
+        return SensorHello.newBuilder().setSensorId(id).setWidth(width).setHeight(height)
+                .setSendsFrames(config.sendsFrames()).build();
     }
 
     /** Starts a new recording (with a hello made from the configuration) or stops the current one. */
@@ -388,8 +393,7 @@ public final class SensorPipeline implements SensorInput {
         if (on) {
             SensorRecorder r = new SensorRecorder(id, config.record, counters);
             if (connected) { // switched on at run time: start now; otherwise at the sensor's hello
-                r.start(SensorHello.newBuilder().setSensorId(id).setWidth(width).setHeight(height)
-                        .setSendsFrames(config.sendsFrames()).build(), clock.monotonicNanos());
+                r.start(configHello(), clock.monotonicNanos());
             }
             recorder = r;
         } else {

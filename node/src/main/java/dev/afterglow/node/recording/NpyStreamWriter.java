@@ -1,17 +1,16 @@
 package dev.afterglow.node.recording;
 
+import dev.afterglow.node.learned.NpyHeader;
 import java.io.Closeable;
 import java.io.IOException;
 import java.io.RandomAccessFile;
 import java.nio.ByteBuffer;
 import java.nio.ByteOrder;
 import java.nio.channels.FileChannel;
-import java.nio.charset.StandardCharsets;
 import java.nio.file.Path;
 
 /**
- * Writes a NumPy {@code .npy} file (format version 1.0, as numpy's {@code numpy.lib.format}
- * documents it) one frame at a time, for arrays too large to hold in memory: the header is written
+ * Writes a NumPy {@code .npy} file ({@link NpyHeader}) one frame at a time, for arrays too large to hold in memory: the header is written
  * first with room for the final shape and rewritten with the frame count on {@link #close}. The
  * array is [frames, height, width] of uint8 ({@code |u1}) or little-endian float32 ({@code <f4}).
  */
@@ -40,18 +39,11 @@ public final class NpyStreamWriter implements Closeable {
     }
 
     private void writeHeader() throws IOException {
-        String dict = "{'descr': '" + (float32 ? "<f4" : "|u1") + "', 'fortran_order': False, 'shape': (" + frames + ", "
-                + height + ", " + width + "), }";
-        int headerLength = HEADER_BYTES - 10;
-        StringBuilder h = new StringBuilder(dict);
-        while (h.length() < headerLength - 1) {
-            h.append(' ');
+        byte[] h = NpyHeader.of(float32 ? "<f4" : "|u1", new long[] {frames, height, width}, HEADER_BYTES);
+        if (h.length != HEADER_BYTES) {
+            throw new IOException("npy header grew past the " + HEADER_BYTES + " bytes reserved for it");
         }
-        h.append('\n');
-        ByteBuffer b = ByteBuffer.allocate(HEADER_BYTES).order(ByteOrder.LITTLE_ENDIAN);
-        b.put((byte) 0x93).put("NUMPY".getBytes(StandardCharsets.US_ASCII)).put((byte) 1).put((byte) 0)
-                .putShort((short) headerLength).put(h.toString().getBytes(StandardCharsets.US_ASCII)).flip();
-        channel.write(b, 0);
+        channel.write(ByteBuffer.wrap(h), 0);
     }
 
     /** Appends a float32 frame (width * height values). */
