@@ -142,7 +142,8 @@ public final class SegmentReader implements Closeable {
 
     /**
      * The entries of every intact index record of the segment, in file order, found by reading only
-     * the records' prefixes and the index records themselves; the reading position is kept.
+     * the records' prefixes and the index records themselves; entries whose offset lies outside the
+     * file are left out. The reading position is kept.
      */
     public java.util.List<dev.afterglow.proto.v1.IndexEntry> readIndex() throws IOException {
         java.util.List<dev.afterglow.proto.v1.IndexEntry> entries = new java.util.ArrayList<>();
@@ -165,7 +166,12 @@ public final class SegmentReader implements Closeable {
                         || RecordFormat.crc(p.array(), payload.array(), (int) length) != c.getInt(0)) {
                     break;
                 }
-                entries.addAll(dev.afterglow.proto.v1.RecordingIndex.parseFrom(payload.array()).getEntriesList());
+                for (var e : dev.afterglow.proto.v1.RecordingIndex.parseFrom(payload.array()).getEntriesList()) {
+                    // An offset outside the file cannot be sought to (a file written by something else): left out.
+                    if (e.getOffset() >= RecordFormat.SIGNATURE.length && e.getOffset() < fileSize) {
+                        entries.add(e);
+                    }
+                }
             }
             at = end;
         }

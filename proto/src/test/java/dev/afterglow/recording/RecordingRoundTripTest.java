@@ -86,6 +86,35 @@ class RecordingRoundTripTest {
     }
 
     @Test
+    void shouldIgnoreIndexEntriesThatPointOutsideTheFile() throws IOException {
+        SampleRecording.write(dir, "yard", SampleRecording.envelopes(20, 5), RecordingWriter.Settings.keepAll()).close();
+        Path file = dir.resolve(RecordingWriter.segmentFileName("yard", 0));
+        long size = Files.size(file);
+        // A well-formed index record (its CRC matches) whose offsets point before the first record and past the end.
+        byte[] payload = dev.afterglow.proto.v1.RecordingIndex.newBuilder()
+                .addEntries(dev.afterglow.proto.v1.IndexEntry.newBuilder().setSensorTimeUs(1).setOffset(3))
+                .addEntries(dev.afterglow.proto.v1.IndexEntry.newBuilder().setSensorTimeUs(2).setOffset(size + 1_000_000))
+                .addEntries(dev.afterglow.proto.v1.IndexEntry.newBuilder().setSensorTimeUs(3).setOffset(Long.MAX_VALUE))
+                .build().toByteArray();
+        byte[] prefix = new byte[RecordFormat.PREFIX];
+        int crc = RecordFormat.prefixAndCrc(RecordFormat.INDEX, payload, payload.length, prefix);
+        java.nio.ByteBuffer crcBytes = java.nio.ByteBuffer.allocate(4).order(java.nio.ByteOrder.LITTLE_ENDIAN).putInt(crc);
+        Files.write(file, prefix, java.nio.file.StandardOpenOption.APPEND);
+        Files.write(file, payload, java.nio.file.StandardOpenOption.APPEND);
+        Files.write(file, crcBytes.array(), java.nio.file.StandardOpenOption.APPEND);
+        long grown = Files.size(file);
+        try (SegmentReader s = new SegmentReader(file)) {
+            assertTrue(s.readIndex().stream().allMatch(e -> e.getOffset() >= 8 && e.getOffset() < grown),
+                    "only entries inside the file");
+        }
+        try (RecordingReader r = RecordingReader.open(file)) {
+            r.seekToSensorTime(4); // the hostile entries would be the best match; without them: the true ones
+            assertTrue(r.next() != null, "reading goes on");
+            assertEquals(List.of(), r.problems());
+        }
+    }
+
+    @Test
     void shouldKeepOnlyTheRetainedSegmentsAndPinACopy() throws IOException {
         Path live = dir.resolve("ring");
         RecordingWriter.Settings s = RecordingWriter.Settings.keepAll().segments(32 * 1024, 600_000_000L)

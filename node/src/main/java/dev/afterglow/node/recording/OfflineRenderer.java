@@ -48,6 +48,9 @@ public final class OfflineRenderer {
     public record Result(long frames, long events, long sensorFrames, long lastEventUs, List<String> problems) {
     }
 
+    /** Events per packet at most (16 Mi, 128 MiB of records); a larger count is damage. */
+    static final int MAX_PACKET_EVENTS = 1 << 24;
+
     private final Chain chain;
     private final int width;
     private final int height;
@@ -97,8 +100,12 @@ public final class OfflineRenderer {
             Envelope e = item.envelope();
             if (e.hasEvents()) {
                 EventPacket p = e.getEvents();
-                int count = p.getEventCount();
-                if (count <= 0 || count > 1 << 24) {
+                int count = p.getEventCount(); // from the file: checked against the bytes before anything is allocated
+                if (count == 0) {
+                    continue;
+                }
+                if (count < 0 || count > MAX_PACKET_EVENTS || 8L * count != p.getEvents().size()) {
+                    dropped += Integer.toUnsignedLong(count); // rejected whole, as the node rejects such a packet
                     continue;
                 }
                 if (count > batch.capacity()) {

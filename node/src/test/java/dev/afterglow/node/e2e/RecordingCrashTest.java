@@ -67,11 +67,12 @@ class RecordingCrashTest {
                 .redirectErrorStream(true).redirectOutput(dir.resolve("node.log").toFile()).start();
         AtomicBoolean streaming = new AtomicBoolean(true);
         Thread sender = null;
+        SensorClient[] sensor = {null};
         double recordedBeforeKill;
         try {
             StreamingEndToEndTest.waitFor(() -> recordedMessages(http) >= 0);
             List<EventBatch> packets = SceneEvents.packets(W, H, 20_000_000, 1_000, 51);
-            SensorClient sensor = SensorClient.connect("127.0.0.1", ingest, "bench", W, H, false);
+            sensor[0] = SensorClient.connect("127.0.0.1", ingest, "bench", W, H, false);
             sender = new Thread(() -> {
                 long start = System.nanoTime();
                 try {
@@ -80,8 +81,8 @@ class RecordingCrashTest {
                             break;
                         }
                         StreamingEndToEndTest.paceRealTime(start, b.timeBaseUs + 1_000);
-                        sensor.sendEvents(b);
-                        sensor.flush();
+                        sensor[0].sendEvents(b);
+                        sensor[0].flush();
                     }
                 } catch (Exception e) {
                     // the node was killed: the connection breaks
@@ -100,6 +101,13 @@ class RecordingCrashTest {
             node.destroyForcibly();
             if (sender != null) {
                 sender.join(10_000);
+            }
+            if (sensor[0] != null) {
+                try {
+                    sensor[0].close();
+                } catch (IOException gone) {
+                    // the node was killed: the connection is already broken
+                }
             }
         }
         long read = 0;

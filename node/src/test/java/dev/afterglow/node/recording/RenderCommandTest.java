@@ -99,8 +99,12 @@ class RenderCommandTest {
         Process probe = new ProcessBuilder("ffprobe", "-v", "error", "-select_streams", "v:0", "-count_frames",
                 "-show_entries", "stream=codec_name,width,height,nb_read_frames", "-of", "csv=p=0",
                 out.resolve("yard.mp4").toString()).redirectErrorStream(true).start();
-        assertTrue(probe.waitFor(60, TimeUnit.SECONDS));
-        String info = new String(probe.getInputStream().readAllBytes()).trim();
-        assertEquals("h264," + W + "," + H + "," + frames[0], info);
+        try {
+            assertTrue(probe.waitFor(60, TimeUnit.SECONDS));
+            String info = new String(probe.getInputStream().readAllBytes()).trim();
+            assertEquals("h264," + W + "," + H + "," + frames[0], info);
+        } finally {
+            probe.destroyForcibly();
+        }
     }
 }
