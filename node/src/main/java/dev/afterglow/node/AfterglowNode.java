@@ -2,6 +2,7 @@ package dev.afterglow.node;
 
 import dev.afterglow.node.config.LimitsConfig;
 import dev.afterglow.node.config.NodeConfig;
+import dev.afterglow.node.fleet.Fleet;
 import dev.afterglow.node.guard.ConnectionGuard;
 import dev.afterglow.node.guard.ConnectionLimiter;
 import dev.afterglow.node.http.MessageMark;
@@ -72,6 +73,8 @@ public final class AfterglowNode implements AutoCloseable {
     private final Counters nodeCounters = new Counters();
     private final FramePublisher publisher;
     private final SensorRegistry registry;
+    /** Kafka: edge forwarding, processing group, frame topic; null when not configured. */
+    private final Fleet fleet;
     private Channel tcpIngest;
     private Channel udpIngest;
     private Channel subscriberServer;
@@ -92,16 +95,25 @@ public final class AfterglowNode implements AutoCloseable {
         this.serveGroup = new MultiThreadIoEventLoopGroup(1, NioIoHandler.newFactory());
         this.pipelineGroup = new DefaultEventLoopGroup(config.limits.pipelineThreads);
         this.publisher = new FramePublisher(clock, nodeCounters, config.limits.frameBufferBytes);
+        Fleet madeFleet = null;
         try {
-            this.registry = new SensorRegistry(config, pipelineGroup, publisher, clock, nodeCounters);
+            madeFleet = config.kafka.enabled() ? Fleet.create(config.kafka, clock, nodeCounters) : null;
+            this.registry = madeFleet == null
+                    ? new SensorRegistry(config, pipelineGroup, publisher, clock, nodeCounters)
+                    : new SensorRegistry(config, pipelineGroup, publisher, clock, nodeCounters, madeFleet.sinks(),
+                            madeFleet.inputs());
         } catch (RuntimeException e) {
+            if (madeFleet != null) {
+                madeFleet.close();
+            }
             // e.g. a learned reconstruction's model refused: no thread of this node may outlive the error
             ingestGroup.shutdownGracefully(0, 1, java.util.concurrent.TimeUnit.SECONDS);
             serveGroup.shutdownGracefully(0, 1, java.util.concurrent.TimeUnit.SECONDS);
             pipelineGroup.shutdownGracefully(0, 1, java.util.concurrent.TimeUnit.SECONDS);
             throw e;
         }
-        this.meters = new NodeMeters(meterRegistry, registry, publisher, nodeCounters);
+        this.fleet = madeFleet;
+        this.meters = new NodeMeters(meterRegistry, registry, publisher, nodeCounters, fleet);
         this.liveViews = new LiveViews(registry, clock);
         this.watch = new PipelineWatchdog(clock, config.limits.watchdogStallMs * 1_000_000L);
         this.tls = NodeTls.of(config.tls, nodeCounters);
@@ -226,6 +238,9 @@ public final class AfterglowNode implements AutoCloseable {
                     })
                     .bind(new InetSocketAddress(address, config.listen.httpPort)).sync().channel();
         }
+        if (fleet != null) {
+            fleet.start(registry);
+        }
         watchdog = serveGroup.next().scheduleAtFixedRate(this::housekeeping, 250, 250, TimeUnit.MILLISECONDS);
         ready = true;
     }
@@ -300,6 +315,11 @@ public final class AfterglowNode implements AutoCloseable {
         return publisher;
     }
 
+    /** The node's part in a fleet, or null without Kafka. */
+    public Fleet fleet() {
+        return fleet;
+    }
+
     /** Node-wide counters. */
     public Counters counters() {
         return nodeCounters;
@@ -320,8 +340,14 @@ public final class AfterglowNode implements AutoCloseable {
         closeQuietly(httpServer);
         closeQuietly(tcpIngest);
         closeQuietly(udpIngest);
+        if (fleet != null) {
+            fleet.stopIntake(); // hands its sensors over cleanly: the group moves them at once
+        }
         registry.close();
         pipelineGroup.shutdownGracefully(0, 2, TimeUnit.SECONDS).awaitUninterruptibly(5, TimeUnit.SECONDS);
+        if (fleet != null) {
+            fleet.close(); // after the pipelines: their last frames go out
+        }
         closeQuietly(subscriberServer);
         ingestGroup.shutdownGracefully(0, 2, TimeUnit.SECONDS).awaitUninterruptibly(5, TimeUnit.SECONDS);
         serveGroup.shutdownGracefully(0, 2, TimeUnit.SECONDS).awaitUninterruptibly(5, TimeUnit.SECONDS);

@@ -54,6 +54,8 @@ public final class NodeConfig {
     public TlsConfig tls = new TlsConfig();
     /** Who may connect (duplicate sensors, subscriber tokens, web origins). */
     public AccessConfig access = new AccessConfig();
+    /** Fleets on Apache Kafka (event topic, processing group, frame topic); off by default. */
+    public KafkaConfig kafka = new KafkaConfig();
     /**
      * Whether the node runs its configured chains over a generated stream for about a second
      * before it accepts sensors, so the JIT has compiled them when the first packets arrive.
@@ -141,14 +143,15 @@ public final class NodeConfig {
     /** Checks every setting; throws {@link ConfigException} naming the first bad one. */
     public NodeConfig validate() {
         if (listen == null || limits == null || control == null || tls == null || access == null
-                || sensorDefaults == null || sensors == null) {
-            throw new ConfigException("listen, limits, control, tls, access, sensor-defaults and sensors must not be null");
+                || sensorDefaults == null || sensors == null || kafka == null) {
+            throw new ConfigException("listen, limits, control, tls, access, kafka, sensor-defaults and sensors must not be null");
         }
         listen.validate();
         limits.validate();
         control.validate(listen);
         tls.validate();
         access.validate();
+        kafka.validate("kafka");
         sensorDefaults.validate("sensor-defaults", false);
         Set<String> ids = new HashSet<>();
         for (int i = 0; i < sensors.size(); i++) {

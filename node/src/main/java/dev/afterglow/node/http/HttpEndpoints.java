@@ -136,7 +136,7 @@ public final class HttpEndpoints extends SimpleChannelInboundHandler<FullHttpReq
             s.put("height", p.height());
             s.put("chain", p.config().chain);
             s.put("frameRateHz", p.frameRateHz());
-            s.put("packets", c.get(NodeCounter.PACKETS_TCP) + c.get(NodeCounter.PACKETS_UDP));
+            s.put("packets", c.get(NodeCounter.PACKETS_TCP) + c.get(NodeCounter.PACKETS_UDP) + c.get(NodeCounter.PACKETS_KAFKA));
             s.put("events", c.get(NodeCounter.EVENTS_RECEIVED));
             s.put("eventsShed", c.get(NodeCounter.EVENTS_SHED_LATENCY) + c.get(NodeCounter.EVENTS_SHED_QUEUE));
             s.put("packetsShed", c.get(NodeCounter.PACKETS_SHED_LATENCY) + c.get(NodeCounter.PACKETS_SHED_QUEUE));

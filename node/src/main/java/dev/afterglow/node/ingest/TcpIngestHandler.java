@@ -2,6 +2,7 @@ package dev.afterglow.node.ingest;
 
 import com.google.protobuf.InvalidProtocolBufferException;
 import dev.afterglow.node.pipeline.NodeClock;
+import dev.afterglow.node.pipeline.SensorInput;
 import dev.afterglow.node.pipeline.SensorPipeline;
 import dev.afterglow.node.pipeline.SensorRegistry;
 import dev.afterglow.node.pipeline.Transport;
@@ -31,6 +32,8 @@ public final class TcpIngestHandler extends SimpleChannelInboundHandler<ByteBuf>
     private final Counters nodeCounters;
     private final Runnable onMessage;
     private SensorPipeline sensor;
+    /** Where this sensor's messages go: its pipeline, or an edge's forwarder in front of it. */
+    private SensorInput input;
 
     /**
      * @param onMessage called for every whole message (connection timeouts)
@@ -59,14 +62,14 @@ public final class TcpIngestHandler extends SimpleChannelInboundHandler<ByteBuf>
                 if (sensor == null) {
                     protocolError(ctx, "events before hello");
                 } else {
-                    sensor.events(envelope, arrival, Transport.TCP);
+                    input.events(envelope, arrival, Transport.TCP);
                 }
             }
             case SENSOR_FRAME -> {
                 if (sensor == null) {
                     protocolError(ctx, "sensor frame before hello");
                 } else {
-                    sensor.sensorFrame(envelope, arrival);
+                    input.sensorFrame(envelope, arrival);
                 }
             }
             default -> protocolError(ctx, "unexpected " + envelope.getBodyCase() + " on an ingest connection");
@@ -90,7 +93,8 @@ public final class TcpIngestHandler extends SimpleChannelInboundHandler<ByteBuf>
             return;
         }
         sensor = attach.pipeline();
-        sensor.hello(envelope.getHello(), clock.monotonicNanos());
+        input = attach.input();
+        input.hello(envelope.getHello(), clock.monotonicNanos());
     }
 
     private void protocolError(ChannelHandlerContext ctx, String what) {

@@ -66,13 +66,13 @@ public final class UdpIngestHandler extends SimpleChannelInboundHandler<Datagram
             case EVENTS -> {
                 SensorPipeline p = allowed(envelope.getEvents().getSensorId(), sealed, source);
                 if (p != null) {
-                    p.events(envelope, arrival, Transport.UDP);
+                    registry.inputOf(p).events(envelope, arrival, Transport.UDP);
                 }
             }
             case SENSOR_FRAME -> {
                 SensorPipeline p = allowed(envelope.getSensorFrame().getSensorId(), sealed, source);
                 if (p != null) {
-                    p.sensorFrame(envelope, arrival);
+                    registry.inputOf(p).sensorFrame(envelope, arrival);
                 }
             }
             default -> nodeCounters.increment(NodeCounter.PROTOCOL_ERRORS);

@@ -125,7 +125,7 @@ public final class SensorPipeline implements SensorInput {
     private final LatencyRecorder inferenceDuration = new LatencyRecorder();
     private volatile long lagNanos;
     private final LiveTap live;
-    /** Where frames go: the subscribers, then the live view. */
+    /** Where frames go: the subscribers, then the live view, then any others (a frame topic). */
     private final List<FrameSink> sinks;
 
     private volatile SensorConfig config;
@@ -174,6 +174,17 @@ public final class SensorPipeline implements SensorInput {
      */
     public SensorPipeline(SensorConfig config, EventLoop loop, FramePublisher publisher, NodeClock clock,
             Counters counters, int maxPendingPackets, long maxPendingBytes, int maxEventsPerPacket, long maxTimeAheadUs) {
+        this(config, loop, publisher, clock, counters, maxPendingPackets, maxPendingBytes, maxEventsPerPacket, maxTimeAheadUs,
+                List.of());
+    }
+
+    /**
+     * @param extraSinks where frames go besides the subscribers and the live view (a frame topic)
+     */
+    public SensorPipeline(SensorConfig config, EventLoop loop, FramePublisher publisher, NodeClock clock,
+            Counters counters, int maxPendingPackets, long maxPendingBytes, int maxEventsPerPacket, long maxTimeAheadUs,
+            List<FrameSink> extraSinks) {
+
         this.id = config.id;
         this.width = config.width;
         this.height = config.height;
@@ -194,7 +205,11 @@ public final class SensorPipeline implements SensorInput {
         this.gray = new byte[width * height];
         this.live = new LiveTap(width, height, clock, counters);
         // The subscribers first: a frame's publish age is theirs, and a live view page does not count as one.
-        this.sinks = List.of(publisher.sinkFor(id, counters, readoutToSocket, sensorToPublish, clock::monotonicNanos), live);
+        List<FrameSink> all = new java.util.ArrayList<>();
+        all.add(publisher.sinkFor(id, counters, readoutToSocket, sensorToPublish, clock::monotonicNanos));
+        all.add(live);
+        all.addAll(extraSinks);
+        this.sinks = List.copyOf(all);
         applyConfig(config, Chain.build(config.chainSpec(), width, height));
     }
 
@@ -381,8 +396,11 @@ public final class SensorPipeline implements SensorInput {
         r.offer(arrivalNanos, envelope);
     }
 
-    /** The hello a recording starts with when the sensor sent none (UDP, or recording switched on while connected). */
-    private SensorHello configHello() {
+    /**
+     * The hello made from the configuration: what a recording or the event topic starts with when
+     * the sensor sent none (UDP, or recording switched on while connected).
+     */
+    public SensorHello configHello() {
         return SensorHello.newBuilder().setSensorId(id).setWidth(width).setHeight(height)
                 .setSendsFrames(config.sendsFrames()).build();
     }
@@ -415,14 +433,25 @@ public final class SensorPipeline implements SensorInput {
      * thread). Any thread.
      */
     public boolean offerPacket(EventPacket packet, long arrivalNanos, Transport transport) {
-        boolean tcp = transport == Transport.TCP;
         lastInputNanos = clock.monotonicNanos();
         long bytes = packet.getEvents().size();
         // Unsigned on the wire: a count of 2^31 or more must not turn negative here.
         long declared = Integer.toUnsignedLong(packet.getEventCount());
         long present = bytes / EventPacketCodec.BYTES_PER_EVENT;
-        counters.increment(tcp ? NodeCounter.PACKETS_TCP : NodeCounter.PACKETS_UDP);
-        counters.add(tcp ? NodeCounter.EVENTS_TCP : NodeCounter.EVENTS_UDP, present);
+        switch (transport) {
+            case TCP -> {
+                counters.increment(NodeCounter.PACKETS_TCP);
+                counters.add(NodeCounter.EVENTS_TCP, present);
+            }
+            case UDP -> {
+                counters.increment(NodeCounter.PACKETS_UDP);
+                counters.add(NodeCounter.EVENTS_UDP, present);
+            }
+            case KAFKA -> {
+                counters.increment(NodeCounter.PACKETS_KAFKA);
+                counters.add(NodeCounter.EVENTS_KAFKA, present);
+            }
+        }
         if (declared * EventPacketCodec.BYTES_PER_EVENT != bytes || declared > maxEventsPerPacket
                 || Long.compareUnsigned(packet.getTimeBaseUs(), MAX_SENSOR_TIME_US) > 0) {
             counters.increment(NodeCounter.PACKETS_MALFORMED);

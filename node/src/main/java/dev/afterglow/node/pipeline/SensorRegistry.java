@@ -17,6 +17,9 @@ import io.netty.channel.EventLoopGroup;
 import java.nio.charset.StandardCharsets;
 import java.security.MessageDigest;
 import java.util.Collection;
+import java.util.List;
+import java.util.Set;
+import dev.afterglow.node.publish.FrameSink;
 import java.util.Map;
 import java.util.concurrent.ConcurrentHashMap;
 import java.util.regex.Pattern;
@@ -38,11 +41,24 @@ public final class SensorRegistry {
     /** Share of the heap that sensor state may take; the rest is for packets, frames and the JVM. */
     private static final double HEAP_SHARE_FOR_SENSORS = 0.6;
 
-    /** Outcome of a hello: the sensor's pipeline, or an error code and message for the peer. */
-    public record Attach(SensorPipeline pipeline, String errorCode, String message) {
+    /**
+     * Outcome of a hello: the sensor's pipeline and where its messages go (the pipeline itself, or
+     * the edge's forwarder in front of it), or an error code and message for the peer.
+     */
+    public record Attach(SensorPipeline pipeline, SensorInput input, String errorCode, String message) {
         static Attach error(String code, String message) {
-            return new Attach(null, code, message);
+            return new Attach(null, null, code, message);
         }
+    }
+
+    /** Frame sinks a sensor gets besides its subscribers and live view (e.g. a frame topic). */
+    public interface ExtraSinks {
+        List<FrameSink> forSensor(String sensorId, Counters sensorCounters);
+    }
+
+    /** What stands in front of a sensor's pipeline for messages from TCP and UDP (e.g. an edge's forwarder). */
+    public interface InputWrapper {
+        SensorInput wrap(SensorPipeline pipeline);
     }
 
     private final NodeConfig config;
@@ -53,10 +69,26 @@ public final class SensorRegistry {
     private final Map<String, SensorPipeline> sensors = new ConcurrentHashMap<>();
     private final Map<String, Counters> sensorCounters = new ConcurrentHashMap<>();
     private final Map<String, Channel> activeTcp = new ConcurrentHashMap<>();
+    /** Sensors this node takes from the event topic now (it owns their partitions). */
+    private final Set<String> fromBus = ConcurrentHashMap.newKeySet();
+    private final Map<String, SensorInput> inputs = new ConcurrentHashMap<>();
     private final long heapBudgetBytes;
+    private final ExtraSinks extraSinks;
+    private final InputWrapper inputWrapper;
 
     public SensorRegistry(NodeConfig config, EventLoopGroup pipelineGroup, FramePublisher publisher, NodeClock clock,
             Counters nodeCounters) {
+        this(config, pipelineGroup, publisher, clock, nodeCounters, (id, c) -> List.of(), p -> p);
+    }
+
+    /**
+     * @param extraSinks frame sinks each sensor gets besides subscribers and live view
+     * @param inputWrapper what stands in front of each pipeline for TCP and UDP messages
+     */
+    public SensorRegistry(NodeConfig config, EventLoopGroup pipelineGroup, FramePublisher publisher, NodeClock clock,
+            Counters nodeCounters, ExtraSinks extraSinks, InputWrapper inputWrapper) {
+        this.extraSinks = extraSinks;
+        this.inputWrapper = inputWrapper;
         this.config = config;
         this.pipelineGroup = pipelineGroup;
         this.publisher = publisher;
@@ -95,13 +127,20 @@ public final class SensorRegistry {
         try {
             p = new SensorPipeline(s, pipelineGroup.next(), publisher, clock, c,
                     config.limits.maxPendingPackets, config.limits.maxPendingBytes, config.limits.maxEventsPerPacket,
-                    config.limits.maxTimeAheadMs * 1000L);
+                    config.limits.maxTimeAheadMs * 1000L, extraSinks.forSensor(s.id, c));
         } catch (ChainSpecException e) {
             sensorCounters.remove(s.id, c);
             throw new ConfigException("sensor " + s.id + ": chain: " + e.getMessage(), e);
         }
         sensors.put(s.id, p);
+        inputs.put(s.id, inputWrapper.wrap(p));
         return p;
+    }
+
+    /** Where TCP and UDP messages of this sensor go (its pipeline, or the edge's forwarder in front of it). */
+    public SensorInput inputOf(SensorPipeline p) {
+        SensorInput in = inputs.get(p.id());
+        return in != null ? in : p;
     }
 
     /** Estimated bytes a sensor of this size holds (state per pixel plus its first work batches). */
@@ -111,6 +150,72 @@ public final class SensorRegistry {
 
     /** Binds a TCP connection that sent {@code hello} to its sensor. */
     public synchronized Attach attach(SensorHello hello, Channel channel) {
+        Attach found = pipelineFor(hello, String.valueOf(channel.remoteAddress()));
+        if (found.pipeline() == null) {
+            return found;
+        }
+        SensorPipeline p = found.pipeline();
+        String id = p.id();
+        boolean authenticated = p.config().hasToken() && tokenMatches(p.config().token, hello.getToken());
+        if (fromBus.contains(id)) {
+            nodeCounters.increment(NodeCounter.DUPLICATE_SENSOR);
+            return Attach.error("duplicate-sensor", "sensor " + id + " is taken from the event topic by this node");
+        }
+        Channel old = activeTcp.get(id);
+        if (old != null && old != channel && old.isActive() && !silent(old)) {
+            boolean replace = config.access.duplicateSensor == AccessConfig.DuplicateSensor.REPLACE && authenticated;
+            if (!replace) {
+                nodeCounters.increment(NodeCounter.DUPLICATE_SENSOR);
+                OnceLog.warn("duplicate:" + id, "sensor " + id + ": second connection from " + channel.remoteAddress()
+                        + " refused; the connected one stays", null);
+                return Attach.error("duplicate-sensor", "sensor " + id + " is already connected"
+                        + (config.access.duplicateSensor == AccessConfig.DuplicateSensor.REPLACE
+                                ? "; a replacing connection must carry the sensor's token" : ""));
+            }
+            activeTcp.put(id, channel);
+            old.close();
+        } else {
+            activeTcp.put(id, channel);
+        }
+        p.setConnected(true);
+        p.declareFrames(hello.getSendsFrames());
+        return new Attach(p, inputOf(p), null, null);
+    }
+
+    /**
+     * Starts a sensor whose hello came from the event topic (this node owns its partition): same
+     * checks as a TCP hello (id, token, geometry, limits), but no connection. Repeated hellos of a
+     * sensor already started return it again.
+     */
+    public synchronized Attach attachFromBus(SensorHello hello) {
+        Attach found = pipelineFor(hello, "the event topic");
+        if (found.pipeline() == null) {
+            return found;
+        }
+        SensorPipeline p = found.pipeline();
+        if (activeTcp.containsKey(p.id())) {
+            nodeCounters.increment(NodeCounter.DUPLICATE_SENSOR);
+            return Attach.error("duplicate-sensor", "sensor " + p.id() + " is connected to this node over TCP");
+        }
+        if (fromBus.add(p.id())) {
+            p.setConnected(true);
+        }
+        p.declareFrames(hello.getSendsFrames());
+        return new Attach(p, p, null, null);
+    }
+
+    /** The sensor left this node's share of the event topic. */
+    public void detachFromBus(String sensorId) {
+        if (fromBus.remove(sensorId)) {
+            SensorPipeline p = sensors.get(sensorId);
+            if (p != null) {
+                p.setConnected(false);
+            }
+        }
+    }
+
+    /** Finds or makes the pipeline of the sensor a hello names, after checking id, token, geometry and limits. */
+    private Attach pipelineFor(SensorHello hello, String from) {
         String id = hello.getSensorId();
         if (!SENSOR_ID.matcher(id).matches()) {
             nodeCounters.increment(NodeCounter.UNKNOWN_SENSOR);
@@ -124,8 +229,7 @@ public final class SensorRegistry {
         boolean authenticated = settings.hasToken() && tokenMatches(settings.token, hello.getToken());
         if (settings.hasToken() && !authenticated) {
             nodeCounters.increment(NodeCounter.AUTH_REFUSED);
-            OnceLog.warn("auth-sensor", "sensor " + id + ": hello with a wrong or missing token refused from "
-                    + channel.remoteAddress(), null);
+            OnceLog.warn("auth-sensor", "sensor " + id + ": hello with a wrong or missing token refused from " + from, null);
             return Attach.error("unauthorized", "sensor " + id + " needs its token");
         }
         if (p == null) {
@@ -153,25 +257,7 @@ public final class SensorRegistry {
             return Attach.error("geometry-mismatch", "sensor " + id + " is " + p.width() + "x" + p.height()
                     + ", hello says " + width + "x" + height);
         }
-        Channel old = activeTcp.get(id);
-        if (old != null && old != channel && old.isActive() && !silent(old)) {
-            boolean replace = config.access.duplicateSensor == AccessConfig.DuplicateSensor.REPLACE && authenticated;
-            if (!replace) {
-                nodeCounters.increment(NodeCounter.DUPLICATE_SENSOR);
-                OnceLog.warn("duplicate:" + id, "sensor " + id + ": second connection from " + channel.remoteAddress()
-                        + " refused; the connected one stays", null);
-                return Attach.error("duplicate-sensor", "sensor " + id + " is already connected"
-                        + (config.access.duplicateSensor == AccessConfig.DuplicateSensor.REPLACE
-                                ? "; a replacing connection must carry the sensor's token" : ""));
-            }
-            activeTcp.put(id, channel);
-            old.close();
-        } else {
-            activeTcp.put(id, channel);
-        }
-        p.setConnected(true);
-        p.declareFrames(hello.getSendsFrames());
-        return new Attach(p, null, null);
+        return new Attach(p, p, null, null);
     }
 
     /**
@@ -231,9 +317,10 @@ public final class SensorRegistry {
         }
         int evicted = 0;
         for (SensorPipeline p : sensors.values()) {
-            if (config.sensor(p.id()) == null && !p.connected() && !activeTcp.containsKey(p.id())
+            if (config.sensor(p.id()) == null && !p.connected() && !activeTcp.containsKey(p.id()) && !fromBus.contains(p.id())
                     && nowNanos - p.lastInputNanos() > idleNanos) {
                 sensors.remove(p.id());
+                inputs.remove(p.id());
                 sensorCounters.remove(p.id());
                 p.close();
                 nodeCounters.increment(NodeCounter.SENSORS_EVICTED);

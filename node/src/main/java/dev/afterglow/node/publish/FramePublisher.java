@@ -1,16 +1,11 @@
 package dev.afterglow.node.publish;
 
-import com.google.protobuf.UnsafeByteOperations;
 import dev.afterglow.node.pipeline.NodeClock;
 import dev.afterglow.node.stats.Counters;
 import dev.afterglow.node.stats.NodeCounter;
 import dev.afterglow.node.stats.OnceLog;
 import dev.afterglow.node.wire.Envelopes;
 import dev.afterglow.proto.v1.Envelope;
-import dev.afterglow.proto.v1.IntensityFrame;
-import dev.afterglow.proto.v1.PixelFormat;
-import dev.afterglow.proto.v1.Provenance;
-import dev.afterglow.proto.v1.Region;
 import dev.afterglow.metrics.LatencyRecorder;
 import io.netty.buffer.ByteBuf;
 import io.netty.buffer.PooledByteBufAllocator;
@@ -241,37 +236,10 @@ public final class FramePublisher {
     }
 
     private ByteBuf encode(FrameData f, Subscription.RenderKey k) {
-        byte[] pixels = k.format() == PixelFormat.PIXEL_FORMAT_LOG_F32
-                ? RegionRenderer.logF32(f.log(), f.width(), k)
-                : RegionRenderer.gray(f.gray8().get(), f.width(), f.height(), k);
-        long nowUs = clock.monotonicNanos() / 1000;
-        Provenance.Builder p = f.provenance().toBuilder()
-                .setPublishHostTimeNs(clock.wallNanos())
-                .setSensorToPublishUs(nowUs - f.frameHostUs())
-                .setReadoutNs(f.readoutNanos());
-        if (f.newestArrivalUs() > 0) {
-            p.setArrivalToPublishUs(nowUs - f.newestArrivalUs());
-        }
-        IntensityFrame frame = IntensityFrame.newBuilder()
-                .setSensorId(f.sensorId())
-                .setSequence(f.sequence())
-                .setFrameTimeUs(f.frameTimeUs())
-                .setWindowStartUs(f.windowStartUs())
-                .setWindowEndUs(f.frameTimeUs())
-                .setFormat(k.format())
-                .setWidth(k.width() / k.downscale())
-                .setHeight(k.height() / k.downscale())
-                .setRegion(Region.newBuilder().setX(k.x()).setY(k.y()).setWidth(k.width()).setHeight(k.height()))
-                .setDownscale(k.downscale())
-                .setPixels(UnsafeByteOperations.unsafeWrap(pixels))
-                .setProvenance(p)
-                .build();
+        Envelope envelope = FrameEnvelopes.build(f, k, clock.wallNanos(), clock.monotonicNanos() / 1000);
         // Pooled and direct: the socket writes these very bytes for every subscriber (a heap buffer
         // would be copied into a direct one per connection), and the buffer goes back to the pool
         // once every subscriber's write has completed.
-        return Envelopes.delimitedDirect(Envelope.newBuilder()
-                .setSchemaVersion(Envelopes.SCHEMA_VERSION)
-                .setIntensityFrame(frame)
-                .build(), PooledByteBufAllocator.DEFAULT);
+        return Envelopes.delimitedDirect(envelope, PooledByteBufAllocator.DEFAULT);
     }
 }

@@ -10,6 +10,16 @@ public enum NodeCounter {
     PACKETS_UDP(Scope.SENSOR, "afterglow.ingest.udp.packets", "Event packets received over UDP"),
     EVENTS_TCP(Scope.SENSOR, "afterglow.ingest.tcp.events", "Events in packets received over TCP (before any check or shedding)"),
     EVENTS_UDP(Scope.SENSOR, "afterglow.ingest.udp.events", "Events in packets received over UDP (before any check or shedding)"),
+    PACKETS_KAFKA(Scope.SENSOR, "afterglow.ingest.kafka.packets", "Event packets taken from the event topic"),
+    EVENTS_KAFKA(Scope.SENSOR, "afterglow.ingest.kafka.events", "Events in packets taken from the event topic (before any check or shedding)"),
+    KAFKA_SKIPPED_RECORDS(Scope.SENSOR, "afterglow.kafka.skipped.records", "Event-topic records skipped because they were older than the latency budget (plus transit allowance) when read: the node skipped ahead"),
+    KAFKA_SKIPPED_EVENTS(Scope.SENSOR, "afterglow.kafka.skipped.events", "Events in skipped event-topic records"),
+    KAFKA_REREAD_RECORDS(Scope.SENSOR, "afterglow.kafka.reread.records", "Event-topic records read again after an unclean hand-over: the previous owner may have applied them (an upper bound)"),
+    KAFKA_REREAD_EVENTS(Scope.SENSOR, "afterglow.kafka.reread.events", "Events in records read again after an unclean hand-over"),
+    KAFKA_FORWARDED(Scope.SENSOR, "afterglow.kafka.forwarded.messages", "Messages (hello, event packets, sensor frames) forwarded to the event topic"),
+    KAFKA_FORWARD_DROPPED(Scope.SENSOR, "afterglow.kafka.forward.dropped.messages", "Messages not forwarded: the producer's buffer was full or the broker refused them"),
+    KAFKA_FRAMES_PRODUCED(Scope.SENSOR, "afterglow.kafka.frames.produced", "Frames written to the frame topic"),
+    KAFKA_FRAMES_DROPPED(Scope.SENSOR, "afterglow.kafka.frames.dropped", "Frames not written to the frame topic: the producer's buffer was full or the broker refused them"),
     EVENTS_REJECTED(Scope.SENSOR, "afterglow.ingest.rejected.events", "Events in packets rejected whole: malformed, or UDP duplicate or too late"),
     EVENTS_RECEIVED(Scope.SENSOR, "afterglow.ingest.events", "Events in packets that reached the chain (not shed, not malformed)"),
     SENSOR_FRAMES(Scope.SENSOR, "afterglow.ingest.sensor.frames", "The sensor's own frames received"),
@@ -61,6 +71,10 @@ public enum NodeCounter {
     CONNECTIONS_TIMED_OUT(Scope.NODE, "afterglow.connections.timed.out", "Connections closed for a hello, message, request or idle timeout"),
     ORIGIN_REFUSED(Scope.NODE, "afterglow.http.origin.refused", "Browser requests refused for a foreign Origin"),
     INTERNAL_ERRORS(Scope.NODE, "afterglow.internal.errors", "Unexpected exceptions caught by a handler (a bug; the loop keeps running)"),
+    KAFKA_REBALANCES(Scope.NODE, "afterglow.kafka.rebalances", "Partition assignments of the event topic that changed this node's share (sensors moved in or out)"),
+    KAFKA_RECORDS_MALFORMED(Scope.NODE, "afterglow.kafka.malformed.records", "Event-topic records refused: no key, a key that is not a sensor id, too large, not an envelope, or a key that differs from the sensor in the message"),
+    KAFKA_RECORDS_UNATTACHED(Scope.NODE, "afterglow.kafka.unattached.records", "Event-topic records of a sensor this node has not started: no hello seen yet (hellos repeat), or its hello was refused"),
+    KAFKA_ERRORS(Scope.NODE, "afterglow.kafka.errors", "Kafka client errors: failed commits, polls or sends that the node retried or gave up"),
     TLS_HANDSHAKE_FAILURES(Scope.NODE, "afterglow.tls.handshake.failures", "TLS handshakes that failed (not TLS, timeout, untrusted or missing client certificate, client aborted); connection closed");
 
     /** Where a counter lives. */

@@ -3,6 +3,7 @@ package dev.afterglow.node.stats;
 import dev.afterglow.metrics.ChainMeters;
 import dev.afterglow.metrics.StageTimers;
 import dev.afterglow.node.pipeline.SensorPipeline;
+import dev.afterglow.node.fleet.Fleet;
 import dev.afterglow.node.pipeline.SensorRegistry;
 import dev.afterglow.node.publish.FramePublisher;
 import io.micrometer.core.instrument.FunctionCounter;
@@ -44,6 +45,12 @@ public final class NodeMeters {
     }
 
     public NodeMeters(MeterRegistry registry, SensorRegistry sensors, FramePublisher publisher, Counters nodeCounters) {
+        this(registry, sensors, publisher, nodeCounters, null);
+    }
+
+    /** @param fleet the node's part in a fleet (partitions owned and consumer lag), or null */
+    public NodeMeters(MeterRegistry registry, SensorRegistry sensors, FramePublisher publisher, Counters nodeCounters,
+            Fleet fleet) {
         this.registry = registry;
         this.sensors = sensors;
         for (NodeCounter c : NodeCounter.values()) {
@@ -56,6 +63,16 @@ public final class NodeMeters {
         Gauge.builder("afterglow.subscribers.connected", publisher, FramePublisher::count)
                 .description("Subscriber connections with an accepted subscription")
                 .register(registry);
+        if (fleet != null && fleet.consumes()) {
+            Gauge.builder("afterglow.kafka.partitions.owned", fleet,
+                            f -> f.source() == null ? 0 : f.source().partitionsOwned())
+                    .description("Partitions of the event topic this node owns in its processing group")
+                    .register(registry);
+            Gauge.builder("afterglow.kafka.consumer.lag", fleet, f -> f.source() == null ? 0 : f.source().lagRecords())
+                    .description("Event-topic records in this node's partitions not yet read (consumer lag)")
+                    .baseUnit("records")
+                    .register(registry);
+        }
         refresh();
     }
 

@@ -1,0 +1,136 @@
+package dev.afterglow.node.fleet;
+
+import dev.afterglow.node.config.KafkaConfig;
+import dev.afterglow.node.pipeline.SensorInput;
+import dev.afterglow.node.pipeline.SensorPipeline;
+import dev.afterglow.node.pipeline.Transport;
+import dev.afterglow.node.stats.Counters;
+import dev.afterglow.node.stats.NodeCounter;
+import dev.afterglow.node.stats.OnceLog;
+import dev.afterglow.proto.v1.Envelope;
+import dev.afterglow.proto.v1.SensorHello;
+import dev.afterglow.node.wire.Envelopes;
+import java.util.Map;
+import java.util.concurrent.ConcurrentHashMap;
+import org.apache.kafka.clients.producer.Callback;
+import org.apache.kafka.clients.producer.KafkaProducer;
+import org.apache.kafka.clients.producer.ProducerRecord;
+
+/**
+ * An edge node's way to the event topic: every message a sensor sends this node over TCP or UDP
+ * is written to the topic as it arrived (keyed by sensor, so in order), and each sensor's hello is
+ * repeated every {@code hello-repeat-ms} while it sends. Sends never block the ingest thread: a
+ * full producer buffer or a refused record drops the message, counted per sensor.
+ */
+public final class EventForwarder implements AutoCloseable {
+    private final KafkaConfig config;
+    private final KafkaProducer<byte[], byte[]> producer;
+    private final Counters nodeCounters;
+    /** Sensors that forwarded, with their latest hello and when they last sent anything. */
+    private final Map<String, Forwarding> sensors = new ConcurrentHashMap<>();
+
+    EventForwarder(KafkaConfig config, Counters nodeCounters) {
+        this.config = config;
+        this.nodeCounters = nodeCounters;
+        this.producer = KafkaClients.producer(config, "edge");
+        try {
+            KafkaClients.awaitMetadata(producer, config.eventTopic);
+        } catch (RuntimeException e) {
+            producer.close(java.time.Duration.ZERO);
+            throw e;
+        }
+    }
+
+    /** What stands in front of a sensor's pipeline on this edge. */
+    public SensorInput wrap(SensorPipeline pipeline) {
+        return new Forwarding(pipeline, config.processForwarded);
+    }
+
+    /** Sends the hello of every sensor that sent something within two repeat periods. Called every {@code hello-repeat-ms}. */
+    void repeatHellos(long nowNanos) {
+        long recent = 2L * config.helloRepeatMs * 1_000_000L;
+        for (Forwarding f : sensors.values()) {
+            SensorHello h = f.hello;
+            if (h != null && nowNanos - f.lastSentNanos < recent) {
+                f.send(Envelope.newBuilder().setSchemaVersion(Envelopes.SCHEMA_VERSION).setHello(h).build());
+            }
+        }
+    }
+
+    @Override
+    public void close() {
+        producer.close(java.time.Duration.ofSeconds(5));
+    }
+
+    /** One sensor's messages: forwarded, and passed to its pipeline when the edge processes too. */
+    private final class Forwarding implements SensorInput {
+        private final SensorPipeline pipeline;
+        private final boolean process;
+        private final byte[] key;
+        private final Callback onSent;
+        private volatile SensorHello hello;
+        private volatile long lastSentNanos;
+
+        Forwarding(SensorPipeline pipeline, boolean process) {
+            this.pipeline = pipeline;
+            this.process = process;
+            this.key = EventRecords.key(pipeline.id());
+            Counters c = pipeline.counters();
+            this.onSent = (metadata, e) -> {
+                if (e == null) {
+                    c.increment(NodeCounter.KAFKA_FORWARDED);
+                } else {
+                    dropped(e);
+                }
+            };
+        }
+
+        @Override
+        public void hello(SensorHello h, long arrivalNanos) {
+            hello = h;
+            sensors.put(pipeline.id(), this);
+            send(Envelope.newBuilder().setSchemaVersion(Envelopes.SCHEMA_VERSION).setHello(h).build());
+            pipeline.hello(h, arrivalNanos);
+        }
+
+        @Override
+        public boolean events(Envelope envelope, long arrivalNanos, Transport transport) {
+            startIfNeeded();
+            send(envelope);
+            return !process || pipeline.events(envelope, arrivalNanos, transport);
+        }
+
+        @Override
+        public void sensorFrame(Envelope envelope, long arrivalNanos) {
+            startIfNeeded();
+            send(envelope);
+            if (process) {
+                pipeline.sensorFrame(envelope, arrivalNanos);
+            }
+        }
+
+        /** A UDP sensor says no hello: the topic gets one made from its configuration first. */
+        private void startIfNeeded() {
+            if (hello == null) {
+                hello = pipeline.configHello();
+                sensors.put(pipeline.id(), this);
+                send(Envelope.newBuilder().setSchemaVersion(Envelopes.SCHEMA_VERSION).setHello(hello).build());
+            }
+        }
+
+        void send(Envelope envelope) {
+            lastSentNanos = System.nanoTime();
+            try {
+                producer.send(new ProducerRecord<>(config.eventTopic, key, envelope.toByteArray()), onSent);
+            } catch (RuntimeException e) { // buffer full (max.block.ms = 0), record too large, producer closed
+                dropped(e);
+            }
+        }
+
+        private void dropped(Exception e) {
+            pipeline.counters().increment(NodeCounter.KAFKA_FORWARD_DROPPED);
+            OnceLog.warn("kafka-forward:" + e.getClass().getName(), "sensor " + pipeline.id()
+                    + ": a message was not forwarded to " + config.eventTopic + ": " + e, null);
+        }
+    }
+}

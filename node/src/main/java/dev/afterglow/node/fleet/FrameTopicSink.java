@@ -1,0 +1,65 @@
+package dev.afterglow.node.fleet;
+
+import dev.afterglow.node.pipeline.NodeClock;
+import dev.afterglow.node.publish.FrameData;
+import dev.afterglow.node.publish.FrameEnvelopes;
+import dev.afterglow.node.publish.FrameSink;
+import dev.afterglow.node.stats.Counters;
+import dev.afterglow.node.stats.NodeCounter;
+import dev.afterglow.node.stats.OnceLog;
+import dev.afterglow.proto.v1.PixelFormat;
+import org.apache.kafka.clients.producer.Callback;
+import org.apache.kafka.clients.producer.KafkaProducer;
+import org.apache.kafka.clients.producer.ProducerRecord;
+
+/**
+ * One sensor's frames to the frame topic: each frame read out is written whole, in the configured
+ * pixel format, as the same envelope a subscriber receives (key: sensor id). Never blocks the
+ * pipeline thread: a full producer buffer or a refused record drops the frame, counted.
+ */
+final class FrameTopicSink implements FrameSink {
+    private final KafkaProducer<byte[], byte[]> producer;
+    private final String topic;
+    private final PixelFormat format;
+    private final NodeClock clock;
+    private final Counters counters;
+    private final byte[] key;
+    private final Callback onSent;
+
+    FrameTopicSink(KafkaProducer<byte[], byte[]> producer, String topic, PixelFormat format, NodeClock clock,
+            String sensorId, Counters counters) {
+        this.producer = producer;
+        this.topic = topic;
+        this.format = format;
+        this.clock = clock;
+        this.counters = counters;
+        this.key = EventRecords.key(sensorId);
+        this.onSent = (metadata, e) -> {
+            if (e == null) {
+                counters.increment(NodeCounter.KAFKA_FRAMES_PRODUCED);
+            } else {
+                dropped(e);
+            }
+        };
+    }
+
+    @Override
+    public boolean wantsFrames() {
+        return true;
+    }
+
+    @Override
+    public void accept(FrameData frame) {
+        byte[] value = FrameEnvelopes.whole(frame, format, clock.wallNanos(), clock.monotonicNanos() / 1000).toByteArray();
+        try {
+            producer.send(new ProducerRecord<>(topic, key, value), onSent);
+        } catch (RuntimeException e) {
+            dropped(e);
+        }
+    }
+
+    private void dropped(Exception e) {
+        counters.increment(NodeCounter.KAFKA_FRAMES_DROPPED);
+        OnceLog.warn("kafka-frames:" + e.getClass().getName(), "a frame was not written to " + topic + ": " + e, null);
+    }
+}
