@@ -16,12 +16,16 @@ import org.apache.kafka.clients.producer.ProducerRecord;
  * event topic, an intensity frame on the frame topic; the sensor id inside must equal the key;
  * <li>timestamp: the producer's create time (or the broker's log-append time); a processing node
  * skips records older than the sensor's latency budget plus the transit allowance;
- * <li>no headers are needed.
+ * <li>no headers are needed on the event topic; frame records carry {@value #MEMBER_HEADER}: the
+ * name of the node that made the frame (a sensor's frames change node when the group moves it,
+ * and its frame sequence starts again there).
  * </ul>
  * A producer must send the sensor's hello first and repeat it (the edge does every
  * {@code kafka.hello-repeat-ms}), so that a node that takes the sensor over mid-stream can start it.
  */
 public final class EventRecords {
+    /** Header of frame records naming the node that made the frame. */
+    public static final String MEMBER_HEADER = "afterglow-member";
     private static final Pattern SENSOR_ID = Pattern.compile("[A-Za-z0-9._:-]{1,64}");
 
     private EventRecords() {

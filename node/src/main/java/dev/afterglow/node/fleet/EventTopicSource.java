@@ -11,6 +11,7 @@ import dev.afterglow.node.stats.NodeCounter;
 import dev.afterglow.node.stats.OnceLog;
 import dev.afterglow.node.wire.Envelopes;
 import dev.afterglow.proto.v1.Envelope;
+import dev.afterglow.proto.v1.SensorHello;
 import java.time.Duration;
 import java.util.ArrayList;
 import java.util.Collection;
@@ -39,6 +40,8 @@ import org.apache.kafka.common.errors.WakeupException;
  * whose last commit is not clean and not its own knows the previous owner died within one commit
  * interval (plus a poll) of {@code t}: records up to then may have been applied there already, and
  * are counted as re-read (an upper bound); records after it cannot have been.
+ *
+ * <p>A sensor starts at its hello, or at its first record if this node knows it already (listed).
  *
  * <p>Bounded latency: a record older than the sensor's latency budget plus
  * {@code transit-allowance-ms} when read is skipped (counted), so a node that fell behind, or
@@ -164,6 +167,9 @@ public final class EventTopicSource implements ConsumerRebalanceListener, AutoCl
         }
         SensorPipeline p = started.get(id);
         if (p == null) {
+            p = startKnown(tp, id, arrival);
+        }
+        if (p == null) {
             nodeCounters.increment(NodeCounter.KAFKA_RECORDS_UNATTACHED);
             return;
         }
@@ -192,20 +198,40 @@ public final class EventTopicSource implements ConsumerRebalanceListener, AutoCl
     }
 
     private void onHello(TopicPartition tp, String id, Envelope envelope, long arrival) {
-        SensorPipeline known = started.get(id);
-        if (known != null) {
-            return; // a repeated hello: the sensor runs already
+        if (!started.containsKey(id)) { // else a repeated hello: the sensor runs already
+            start(tp, id, envelope.getHello(), arrival);
         }
-        SensorRegistry.Attach attach = registry.attachFromBus(envelope.getHello());
+    }
+
+    /**
+     * A sensor this node already knows (listed in its configuration, or started here before) needs
+     * no hello to start mid-stream: its settings give its geometry. The topic is trusted as far as
+     * its ACLs go, as for every record after a hello.
+     */
+    private SensorPipeline startKnown(TopicPartition tp, String id, long arrival) {
+        SensorPipeline known = registry.get(id);
+        if (known == null) {
+            return null;
+        }
+        SensorHello hello = known.configHello();
+        if (known.config().hasToken()) {
+            hello = hello.toBuilder().setToken(known.config().token).build();
+        }
+        return start(tp, id, hello, arrival);
+    }
+
+    private SensorPipeline start(TopicPartition tp, String id, SensorHello hello, long arrival) {
+        SensorRegistry.Attach attach = registry.attachFromBus(hello);
         if (attach.pipeline() == null) {
             nodeCounters.increment(NodeCounter.KAFKA_RECORDS_UNATTACHED);
             OnceLog.warn("kafka-hello-refused", "sensor " + id + " on " + tp + " refused: " + attach.errorCode() + ": "
                     + attach.message(), null);
-            return;
+            return null;
         }
         started.put(id, attach.pipeline());
         sensorsOf.computeIfAbsent(tp, k -> new HashSet<>()).add(id);
-        attach.pipeline().hello(envelope.getHello(), arrival);
+        attach.pipeline().hello(hello, arrival);
+        return attach.pipeline();
     }
 
     private void malformed(TopicPartition tp, long offset, String why) {

@@ -75,8 +75,9 @@ public final class Fleet implements AutoCloseable {
         if (frameProducer == null) {
             return (id, c) -> List.of();
         }
+        String member = config.member();
         PixelFormat format = config.frameFormat.equals("log-f32") ? PixelFormat.PIXEL_FORMAT_LOG_F32 : PixelFormat.PIXEL_FORMAT_GRAY8;
-        return (id, c) -> List.<FrameSink>of(new FrameTopicSink(frameProducer, config.frameTopic, format, clock, id, c));
+        return (id, c) -> List.<FrameSink>of(new FrameTopicSink(frameProducer, config.frameTopic, format, clock, id, c, member));
     }
 
     /** What stands in front of each pipeline for TCP and UDP messages (the edge's forwarder, if forwarding). */

@@ -25,9 +25,11 @@ final class FrameTopicSink implements FrameSink {
     private final Counters counters;
     private final byte[] key;
     private final Callback onSent;
+    private final byte[] member;
 
     FrameTopicSink(KafkaProducer<byte[], byte[]> producer, String topic, PixelFormat format, NodeClock clock,
-            String sensorId, Counters counters) {
+            String sensorId, Counters counters, String member) {
+        this.member = member.getBytes(java.nio.charset.StandardCharsets.UTF_8);
         this.producer = producer;
         this.topic = topic;
         this.format = format;
@@ -52,7 +54,9 @@ final class FrameTopicSink implements FrameSink {
     public void accept(FrameData frame) {
         byte[] value = FrameEnvelopes.whole(frame, format, clock.wallNanos(), clock.monotonicNanos() / 1000).toByteArray();
         try {
-            producer.send(new ProducerRecord<>(topic, key, value), onSent);
+            ProducerRecord<byte[], byte[]> r = new ProducerRecord<>(topic, key, value);
+            r.headers().add(EventRecords.MEMBER_HEADER, member);
+            producer.send(r, onSent);
         } catch (RuntimeException e) {
             dropped(e);
         }

@@ -7,12 +7,12 @@ import java.util.ArrayList;
 import java.util.List;
 
 /** Deterministic event packets from the synthetic sensor's parcel-line scene, for end-to-end tests. */
-final class SceneEvents {
+public final class SceneEvents {
     private SceneEvents() {
     }
 
     /** Packets of {@code packetUs} each, covering [0, durationUs) of sensor time (empty ones left out). */
-    static List<EventBatch> packets(int width, int height, long durationUs, long packetUs, long seed) {
+    public static List<EventBatch> packets(int width, int height, long durationUs, long packetUs, long seed) {
         SyntheticSensor sensor = new SyntheticSensor(SceneKind.PARCEL_LINE.create(width, height, seed),
                 SceneKind.PARCEL_LINE.sensor(width, height).backgroundRateHz(2).seed(seed).build());
         List<EventBatch> out = new ArrayList<>();
@@ -27,5 +27,13 @@ final class SceneEvents {
             }
         }
         return out;
+    }
+
+    /** Sleeps until {@code sensorUs} of sensor time has passed since {@code startNanos} (real-time pacing). */
+    public static void paceRealTime(long startNanos, long sensorUs) throws InterruptedException {
+        long wait = startNanos + sensorUs * 1000 - System.nanoTime();
+        if (wait > 0) {
+            java.util.concurrent.TimeUnit.NANOSECONDS.sleep(wait);
+        }
     }
 }

@@ -220,10 +220,7 @@ class StreamingEndToEndTest {
 
     /** Sleeps until {@code sensorUs} of sensor time have passed since {@code startNanos}: a sensor streams in real time. */
     static void paceRealTime(long startNanos, long sensorUs) throws InterruptedException {
-        long wait = startNanos + sensorUs * 1000 - System.nanoTime();
-        if (wait > 0) {
-            TimeUnit.NANOSECONDS.sleep(wait);
-        }
+        SceneEvents.paceRealTime(startNanos, sensorUs);
     }
 
     static String describe(AfterglowNode node) {
