@@ -1,6 +1,7 @@
 package dev.afterglow.node.fleet;
 
 import com.google.protobuf.InvalidProtocolBufferException;
+import dev.afterglow.filters.codec.EventPacketCodec;
 import dev.afterglow.node.config.KafkaConfig;
 import dev.afterglow.node.pipeline.NodeClock;
 import dev.afterglow.node.pipeline.SensorPipeline;
@@ -174,7 +175,7 @@ public final class EventTopicSource implements ConsumerRebalanceListener, AutoCl
             return;
         }
         long events = envelope.getBodyCase() == Envelope.BodyCase.EVENTS
-                ? envelope.getEvents().getEvents().size() / 13 : 0;
+                ? envelope.getEvents().getEvents().size() / EventPacketCodec.BYTES_PER_EVENT : 0;
         long maxAgeMs = Math.round(p.config().latencyBudgetMs) + config.transitAllowanceMs;
         if (wallMs - r.timestamp() > maxAgeMs) {
             p.counters().increment(NodeCounter.KAFKA_SKIPPED_RECORDS);

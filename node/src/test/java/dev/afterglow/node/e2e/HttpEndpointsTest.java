@@ -27,7 +27,7 @@ import org.junit.jupiter.api.Timeout;
  * every counter and the latency series, JSON status, health, readiness, 404 and 405.
  */
 @Timeout(value = 60, unit = TimeUnit.SECONDS)
-class HttpEndpointsTest {
+public class HttpEndpointsTest {
     private static final int W = 64;
     private static final int H = 48;
 
@@ -45,7 +45,7 @@ class HttpEndpointsTest {
     }
 
     /** Value of the first sample of {@code name} whose labels contain every one of {@code labels}; NaN if none. */
-    static double sample(String exposition, String name, String... labels) {
+    public static double sample(String exposition, String name, String... labels) {
         for (String line : exposition.lines().toList()) {
             if (!line.startsWith(name + "{") && !line.startsWith(name + " ")) {
                 continue;
@@ -62,7 +62,7 @@ class HttpEndpointsTest {
     }
 
     /** Prometheus name of a counter: dots to underscores plus {@code _total} (Prometheus naming conventions). */
-    static String promName(NodeCounter c) {
+    public static String promName(NodeCounter c) {
         return c.meterName().replace('.', '_') + "_total";
     }
 

@@ -232,7 +232,7 @@ class FleetEndToEndTest {
                         PixelFormat.PIXEL_FORMAT_LOG_F32);
                 TopicSensor topicSensor = new TopicSensor(broker.bootstrap(), topic[0]);
                 SensorClient tcpSensor = SensorClient.connect("127.0.0.1", direct.ingestTcpPort(), "cam", W, H, false);
-                KafkaConsumer<byte[], byte[]> frameTopic = frameConsumer(topic[1])) {
+                KafkaConsumer<byte[], byte[]> frameTopic = frameConsumer(broker.bootstrap(), topic[1])) {
             fromKafka.setTimeoutMillis(20_000);
             fromTcp.setTimeoutMillis(20_000);
             waitFor("k owns every partition", 30, () -> owned(viaKafka) == 4);
@@ -282,8 +282,8 @@ class FleetEndToEndTest {
         }
     }
 
-    static KafkaConsumer<byte[], byte[]> frameConsumer(String topic) {
-        KafkaConsumer<byte[], byte[]> c = new KafkaConsumer<>(Map.of("bootstrap.servers", broker.bootstrap(),
+    static KafkaConsumer<byte[], byte[]> frameConsumer(String bootstrap, String topic) {
+        KafkaConsumer<byte[], byte[]> c = new KafkaConsumer<>(Map.of("bootstrap.servers", bootstrap,
                 "group.id", "frame-reader-" + topic, "auto.offset.reset", "earliest"),
                 new ByteArrayDeserializer(), new ByteArrayDeserializer());
         c.subscribe(List.of(topic));
@@ -356,6 +356,34 @@ class FleetEndToEndTest {
             assertTrue(node.counters().get(NodeCounter.SENSORS_REFUSED) >= 1, "the oversized hello was refused");
             assertEquals(null, node.sensors().get("huge"));
             assertEquals(0, node.counters().get(NodeCounter.INTERNAL_ERRORS));
+        }
+    }
+
+    @Test
+    void aMemberThatFellBehindSkipsAheadAndCountsWhatItSkipped() throws Exception {
+        String[] topic = newTopics();
+        List<EventBatch> packets = scene(17, 1.0);
+        int stale = packets.size() / 2;
+        try (AfterglowNode node = AfterglowNode.start(member("s", topic, "g5", List.of("cam"), 50));
+                TopicSensor sensors = new TopicSensor(broker.bootstrap(), topic[0])) {
+            waitFor("owns every partition", 30, () -> owned(node) == 4);
+            // The first half was made 10 s ago (a backlog, as after an outage); the rest is live.
+            long tenSecondsAgo = System.currentTimeMillis() - 10_000;
+            long staleEvents = 0;
+            for (int i = 0; i < packets.size(); i++) {
+                if (i < stale) {
+                    sensors.eventsMadeAt("cam", i, packets.get(i), tenSecondsAgo);
+                    staleEvents += packets.get(i).size;
+                } else {
+                    sensors.events("cam", i, packets.get(i));
+                }
+            }
+            sensors.flush();
+            long fresh = events(packets) - staleEvents;
+            waitFor("the live half applied", 30, () -> node.sensors().get("cam").counters().get(NodeCounter.EVENTS_KAFKA) == fresh);
+            Counters c = node.sensors().get("cam").counters();
+            assertEquals(stale, c.get(NodeCounter.KAFKA_SKIPPED_RECORDS), "every record older than the budget skipped");
+            assertEquals(staleEvents, c.get(NodeCounter.KAFKA_SKIPPED_EVENTS));
         }
     }
 }

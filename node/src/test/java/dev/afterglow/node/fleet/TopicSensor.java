@@ -34,6 +34,13 @@ final class TopicSensor implements AutoCloseable {
                 .setEvents(SensorClient.packet(sensorId, sequence, batch)).build());
     }
 
+    /** An event packet whose record says it was made at {@code createdMs} (wall clock). */
+    Future<?> eventsMadeAt(String sensorId, long sequence, EventBatch batch, long createdMs) {
+        Envelope e = Envelope.newBuilder().setSchemaVersion(Envelopes.SCHEMA_VERSION)
+                .setEvents(SensorClient.packet(sensorId, sequence, batch)).build();
+        return producer.send(new ProducerRecord<>(topic, null, createdMs, EventRecords.key(sensorId), e.toByteArray()));
+    }
+
     Future<?> send(String sensorId, Envelope e) {
         return producer.send(EventRecords.of(topic, sensorId, e));
     }
