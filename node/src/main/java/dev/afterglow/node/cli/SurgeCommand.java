@@ -31,8 +31,17 @@ public final class SurgeCommand implements Callable<Integer> {
     @Option(names = "--http", paramLabel = "HOST:PORT", description = "Node's HTTP port, for its counters (/metrics, /status). Default: ${DEFAULT-VALUE}")
     String http = "127.0.0.1:7380";
 
-    @Option(names = "--transport", description = "tcp or udp. Default: ${DEFAULT-VALUE}")
+    @Option(names = "--transport", description = "tcp, udp or kafka (sensors produce to --event-topic; the node consumes it). Default: ${DEFAULT-VALUE}")
     String transport = "tcp";
+
+    @Option(names = "--kafka", paramLabel = "HOST:PORT", description = "Kafka bootstrap server, with --transport kafka. Default: ${DEFAULT-VALUE}")
+    String kafka = "127.0.0.1:9092";
+
+    @Option(names = "--event-topic", description = "Event topic the node's group consumes, with --transport kafka. Default: ${DEFAULT-VALUE}")
+    String eventTopic = "afterglow.events";
+
+    @Option(names = "--frame-topic", description = "With --transport kafka: time frames read from this topic (the node's kafka.frame-topic) instead of subscriber connections. Default: none")
+    String frameTopic = "";
 
     @Option(names = "--sensors", description = "Sensors streaming at once, 1 .. 16 (ids surge-0, surge-1, ...). Default: ${DEFAULT-VALUE}")
     int sensors = 1;
@@ -89,8 +98,16 @@ public final class SurgeCommand implements Callable<Integer> {
         HostPort ingest = HostPort.parse("--node", node);
         HostPort subscriberPort = HostPort.parse("--subscribe", subscribe);
         HostPort httpPort = HostPort.parse("--http", http);
-        if (!transport.equals("tcp") && !transport.equals("udp")) {
-            throw new IllegalArgumentException("--transport=" + transport + ": expected tcp or udp");
+        if (!transport.equals("tcp") && !transport.equals("udp") && !transport.equals("kafka")) {
+            throw new IllegalArgumentException("--transport=" + transport + ": expected tcp, udp or kafka");
+        }
+        SurgeSettings.KafkaRoute route = null;
+        if (transport.equals("kafka")) {
+            HostPort.parse("--kafka", kafka);
+            if (eventTopic.isBlank() || eventTopic.equals(frameTopic)) {
+                throw new IllegalArgumentException("--event-topic must be set and differ from --frame-topic");
+            }
+            route = new SurgeSettings.KafkaRoute(kafka, eventTopic, frameTopic.isBlank() ? null : frameTopic);
         }
         Checks.range("--sensors", sensors, 1, 16);
         Checks.range("--subscribers", subscribers, 0, 64);
@@ -104,6 +121,6 @@ public final class SurgeCommand implements Callable<Integer> {
         Checks.range("--subscriber-rate", subscriberRate, 0, 1000);
         return new SurgeSettings(ingest.host(), ingest.port(), subscriberPort.host(), subscriberPort.port(),
                 httpPort.host(), httpPort.port(), transport.equals("udp"), sensors, subscribers, rateList,
-                stepSeconds, warmupSeconds, width, height, kind, packetUs, out, subscriberRate, seed);
+                stepSeconds, warmupSeconds, width, height, kind, packetUs, out, subscriberRate, seed, route);
     }
 }

@@ -102,6 +102,16 @@ final class EnvelopeWriter {
         return n + count * 8 + trailer.length;
     }
 
+    /** One message without length prefix, in an array of its exact size (a Kafka record's value). */
+    byte[] message(long sequence, long timeBaseUs, byte[] events, int offset, int count) {
+        int n = header(false, sequence, timeBaseUs, count);
+        byte[] dst = new byte[n + count * 8 + trailer.length];
+        System.arraycopy(header, 0, dst, 0, n);
+        System.arraycopy(events, offset, dst, n, count * 8);
+        System.arraycopy(trailer, 0, dst, n + count * 8, trailer.length);
+        return dst;
+    }
+
     /** Bytes a message takes in a datagram for {@code count} events (at most, for sizing buffers). */
     int datagramSize(int count) {
         return header(false, -1L, -1L, count) + count * 8 + trailer.length; // -1: the longest varint (10 bytes)

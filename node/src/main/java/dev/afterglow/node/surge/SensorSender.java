@@ -12,7 +12,11 @@ import java.net.DatagramPacket;
 import java.net.DatagramSocket;
 import java.net.InetSocketAddress;
 import java.net.Socket;
+import java.util.Properties;
 import java.util.concurrent.locks.LockSupport;
+import org.apache.kafka.clients.producer.KafkaProducer;
+import org.apache.kafka.clients.producer.ProducerRecord;
+import org.apache.kafka.common.serialization.ByteArraySerializer;
 
 /**
  * One synthetic sensor of the load generator: streams the spans of a {@link PacketPlan} to the node
@@ -52,6 +56,10 @@ final class SensorSender implements AutoCloseable {
     private final byte[] datagramBuffer;
     private final EnvelopeWriter writer;
     private final int chunkEvents;
+    /** Kafka: the producer and topic the sensor writes its records to; null otherwise. */
+    private final KafkaProducer<byte[], byte[]> producer;
+    private final String topic;
+    private final byte[] key;
 
     private final long[] ringStartUs = new long[RING];
     private final long[] ringSentNs = new long[RING];
@@ -69,13 +77,21 @@ final class SensorSender implements AutoCloseable {
 
     private SensorSender(String id, int index, Socket socket, DatagramSocket datagrams, InetSocketAddress target)
             throws IOException {
+        this(id, index, socket, datagrams, target, null, null);
+    }
+
+    private SensorSender(String id, int index, Socket socket, DatagramSocket datagrams, InetSocketAddress target,
+            KafkaProducer<byte[], byte[]> producer, String topic) throws IOException {
+        this.producer = producer;
+        this.topic = topic;
+        this.key = id.getBytes(java.nio.charset.StandardCharsets.UTF_8);
         this.id = id;
         this.index = index;
         this.socket = socket;
         this.out = socket == null ? null : new BufferedOutputStream(socket.getOutputStream(), 1 << 16);
         this.datagrams = datagrams;
         this.writer = new EnvelopeWriter(id);
-        this.chunkEvents = socket != null ? TCP_CHUNK_EVENTS : UDP_CHUNK_EVENTS;
+        this.chunkEvents = datagrams != null ? UDP_CHUNK_EVENTS : TCP_CHUNK_EVENTS;
         this.datagramBuffer = datagrams == null ? null : new byte[writer.datagramSize(UDP_CHUNK_EVENTS)];
         this.datagram = datagrams == null ? null : new DatagramPacket(datagramBuffer, 0, target);
     }
@@ -100,6 +116,35 @@ final class SensorSender implements AutoCloseable {
         DatagramSocket d = new DatagramSocket();
         d.setSendBufferSize(1 << 20);
         return new SensorSender(id, index, null, d, new InetSocketAddress(host, port));
+    }
+
+    /**
+     * Produces to the event topic as a sensor-side process would (record layout of the fleet: key
+     * the sensor id, value the envelope), starting with the hello. The producer batches for
+     * throughput (linger 1 ms, 1 MiB batches).
+     */
+    static SensorSender kafka(String bootstrap, String topic, String id, int index, int width, int height) throws IOException {
+        Properties p = new Properties();
+        p.put("bootstrap.servers", bootstrap);
+        p.put("linger.ms", "1");
+        p.put("batch.size", String.valueOf(1 << 20));
+        p.put("buffer.memory", String.valueOf(256L << 20));
+        p.put("max.request.size", String.valueOf(8 << 20));
+        p.put("acks", "1");
+        p.put("enable.idempotence", "false");
+        KafkaProducer<byte[], byte[]> producer = new KafkaProducer<>(p, new ByteArraySerializer(), new ByteArraySerializer());
+        SensorSender sender = new SensorSender(id, index, null, null, null, producer, topic);
+        byte[] hello = Envelope.newBuilder().setSchemaVersion(SensorClient.SCHEMA_VERSION).setHello(SensorHello.newBuilder()
+                .setSensorId(id).setWidth(width).setHeight(height)
+                .setClock(ClockDescription.newBuilder().setSource("host-monotonic").setTickNs(1000)))
+                .build().toByteArray();
+        try {
+            producer.send(new ProducerRecord<>(topic, sender.key, hello)).get(15, java.util.concurrent.TimeUnit.SECONDS);
+        } catch (Exception e) {
+            producer.close();
+            throw new IOException("cannot produce to " + topic + " on " + bootstrap + ": " + e, e);
+        }
+        return sender;
     }
 
     String id() {
@@ -191,6 +236,8 @@ final class SensorSender implements AutoCloseable {
         long seq = sequence++;
         if (out != null) {
             writer.writeDelimited(out, seq, timeBaseUs, bytes, offset, count);
+        } else if (producer != null) {
+            producer.send(new ProducerRecord<>(topic, key, writer.message(seq, timeBaseUs, bytes, offset, count)));
         } else {
             int n = writer.writeDatagram(datagramBuffer, seq, timeBaseUs, bytes, offset, count);
             datagram.setLength(n);
@@ -258,6 +305,9 @@ final class SensorSender implements AutoCloseable {
         }
         if (datagrams != null) {
             datagrams.close();
+        }
+        if (producer != null) {
+            producer.close(java.time.Duration.ofSeconds(5));
         }
     }
 }

@@ -30,7 +30,14 @@ import org.HdrHistogram.SingleWriterRecorder;
 final class SubscriberProbe implements AutoCloseable {
     private static final long HIGHEST_US = 3_600_000_000L;
 
-    private final SubscriberClient client;
+    /** Where frames come from: a subscriber connection or a frame topic. */
+    interface FrameFeed {
+        /** The next frame; {@link SocketTimeoutException} when none came within about 200 ms. */
+        IntensityFrame next() throws IOException;
+    }
+
+    private final FrameFeed feed;
+    private final AutoCloseable resource;
     private final SensorSender sender;
     private final double nodeRateHz;
     private final long divisor;
@@ -57,11 +64,22 @@ final class SubscriberProbe implements AutoCloseable {
 
     SubscriberProbe(SubscriberClient client, SensorSender sender, double nodeRateHz, double subscriberRateHz, String name)
             throws IOException {
-        this.client = client;
+        this(client::next, client, sender, nodeRateHz, subscriberRateHz, name);
+    }
+
+    /**
+     * @param resource closed with the probe (the subscriber connection), or null
+     */
+    SubscriberProbe(FrameFeed feed, AutoCloseable resource, SensorSender sender, double nodeRateHz, double subscriberRateHz,
+            String name) throws IOException {
+        this.feed = feed;
+        this.resource = resource;
+        if (resource instanceof SubscriberClient client) {
+            client.setTimeoutMillis(200);
+        }
         this.sender = sender;
         this.nodeRateHz = nodeRateHz;
         this.divisor = subscriberRateHz <= 0 ? 1 : Math.max(1, (long) Math.ceil(nodeRateHz / subscriberRateHz - 1e-9));
-        client.setTimeoutMillis(200);
         this.thread = new Thread(this::readLoop, name);
         this.thread.setDaemon(true);
         this.thread.start();
@@ -92,7 +110,7 @@ final class SubscriberProbe implements AutoCloseable {
         while (!closing) {
             IntensityFrame f;
             try {
-                f = client.next();
+                f = feed.next();
             } catch (SocketTimeoutException e) {
                 continue;
             } catch (IOException e) {
@@ -140,7 +158,13 @@ final class SubscriberProbe implements AutoCloseable {
     public void close() throws IOException {
         closing = true;
         try {
-            client.close();
+            if (resource != null) {
+                resource.close();
+            }
+        } catch (IOException | RuntimeException e) {
+            throw e;
+        } catch (Exception e) {
+            throw new IOException(e);
         } finally {
             try {
                 thread.join(2_000);

@@ -51,7 +51,7 @@ public final class Surge {
         Files.createDirectories(s.out());
         out.printf(Locale.ROOT, "surge: %d sensor(s) %dx%d (%s) over %s to %s:%d, %d subscriber(s) each, rates %s per sensor,"
                         + " %.1f s steps after %.1f s warm-up%n",
-                s.sensors(), s.width(), s.height(), s.scene().label(), s.udp() ? "UDP" : "TCP", s.nodeHost(), s.nodePort(),
+                s.sensors(), s.width(), s.height(), s.scene().label(), s.transportName().toUpperCase(Locale.ROOT), s.nodeHost(), s.nodePort(),
                 s.subscribers(), s.rates(), s.stepSeconds(), s.warmupSeconds());
         long g0 = System.nanoTime();
         SceneLoop loop = SceneLoop.generate(s.scene(), s.width(), s.height(), s.seed());
@@ -64,6 +64,8 @@ public final class Surge {
         }
         List<SensorSender> senders = new ArrayList<>();
         List<SubscriberProbe> probes = new ArrayList<>();
+        FrameTopicReader frameTopic = s.kafka() != null && s.kafka().frameTopic() != null
+                ? new FrameTopicReader(s.kafka().bootstrap(), s.kafka().frameTopic(), ids) : null;
         ExecutorService pool = Executors.newFixedThreadPool(s.sensors(), r -> {
             Thread t = new Thread(r, "surge-sender");
             t.setDaemon(true);
@@ -71,7 +73,9 @@ public final class Surge {
         });
         try {
             for (int i = 0; i < s.sensors(); i++) {
-                senders.add(s.udp()
+                senders.add(s.kafka() != null
+                        ? SensorSender.kafka(s.kafka().bootstrap(), s.kafka().eventTopic(), ids.get(i), i, s.width(), s.height())
+                        : s.udp()
                         ? SensorSender.udp(s.nodeHost(), s.nodePort(), ids.get(i), i)
                         : SensorSender.tcp(s.nodeHost(), s.nodePort(), ids.get(i), i, s.width(), s.height()));
             }
@@ -85,6 +89,10 @@ public final class Surge {
             out.println("surge: the node runs the sensors " + String.join("; ", views));
             for (int i = 0; i < s.sensors(); i++) {
                 double nodeRate = status.get(ids.get(i)).frameRateHz();
+                if (frameTopic != null) {
+                    probes.add(new SubscriberProbe(frameTopic.feed(ids.get(i)), null, senders.get(i), nodeRate, 0, "surge-topic-" + i));
+                    continue;
+                }
                 for (int j = 0; j < s.subscribers(); j++) {
                     SubscriberClient c = SubscriberClient.connect(s.subscribeHost(), s.subscribePort(), ids.get(i),
                             s.subscriberRateHz(), PixelFormat.PIXEL_FORMAT_GRAY8);
@@ -104,7 +112,7 @@ public final class Surge {
             Path png = s.out().resolve(PNG);
             SurgeReport.writeCsv(csv, results);
             LatencyPlot.write(png, results, String.format(Locale.ROOT, "%d sensor(s) %dx%d %s over %s, %d subscriber(s) each; %s",
-                    s.sensors(), s.width(), s.height(), s.scene().label(), s.udp() ? "udp" : "tcp", s.subscribers(),
+                    s.sensors(), s.width(), s.height(), s.scene().label(), s.transportName(), frameTopic != null ? 1 : s.subscribers(),
                     String.join("; ", views)));
             SurgeReport.print(out, results);
             out.println("surge: wrote " + csv + " and " + png);
@@ -116,6 +124,9 @@ public final class Surge {
             }
             for (SensorSender sender : senders) {
                 sender.close();
+            }
+            if (frameTopic != null) {
+                frameTopic.close();
             }
         }
     }
@@ -173,15 +184,18 @@ public final class Surge {
             window += (p.endSensorUs() - p.firstSensorUs()) * 1e-6 / phases.size();
         }
         return new StepResult(k + 1, s.rates().labels().get(k), seconds, window, ids.size(), sent, packets,
-                delta(before, after, ids, NodeCounter.EVENTS_TCP) + delta(before, after, ids, NodeCounter.EVENTS_UDP),
+                delta(before, after, ids, NodeCounter.EVENTS_TCP) + delta(before, after, ids, NodeCounter.EVENTS_UDP)
+                        + delta(before, after, ids, NodeCounter.EVENTS_KAFKA) + delta(before, after, ids, NodeCounter.KAFKA_SKIPPED_EVENTS),
                 delta(before, after, ids, NodeCounter.EVENTS_RECEIVED),
                 deltaChainInput(before, after, ids),
                 delta(before, after, ids, NodeCounter.EVENTS_OUTSIDE_SENSOR),
                 delta(before, after, ids, NodeCounter.EVENTS_LATE),
-                delta(before, after, ids, NodeCounter.EVENTS_SHED_LATENCY),
+                // records a Kafka-fed node skipped for age are shed for the latency budget too
+                delta(before, after, ids, NodeCounter.EVENTS_SHED_LATENCY) + delta(before, after, ids, NodeCounter.KAFKA_SKIPPED_EVENTS),
                 delta(before, after, ids, NodeCounter.EVENTS_SHED_QUEUE),
                 delta(before, after, ids, NodeCounter.EVENTS_REJECTED),
-                delta(before, after, ids, NodeCounter.PACKETS_TCP) + delta(before, after, ids, NodeCounter.PACKETS_UDP),
+                delta(before, after, ids, NodeCounter.PACKETS_TCP) + delta(before, after, ids, NodeCounter.PACKETS_UDP)
+                        + delta(before, after, ids, NodeCounter.PACKETS_KAFKA) + delta(before, after, ids, NodeCounter.KAFKA_SKIPPED_RECORDS),
                 delta(before, after, ids, NodeCounter.PACKETS_MALFORMED),
                 delta(before, after, ids, NodeCounter.UDP_LOST),
                 delta(before, after, ids, NodeCounter.FRAMES_PUBLISHED),
@@ -212,6 +226,12 @@ public final class Surge {
         return phases;
     }
 
+    /** Packets the node took from any transport (a Kafka-fed node's skipped records included). */
+    private static long packetsIn(NodeScrape.SensorCounts c) {
+        return c.get(NodeCounter.PACKETS_TCP) + c.get(NodeCounter.PACKETS_UDP) + c.get(NodeCounter.PACKETS_KAFKA)
+                + c.get(NodeCounter.KAFKA_SKIPPED_RECORDS);
+    }
+
     /**
      * Waits until the node has counted every packet sent (TCP; over UDP lost datagrams never come),
      * no packet is pending and its event counters held still between two reads; false on timeout.
@@ -227,8 +247,7 @@ public final class Surge {
             for (int i = 0; i < ids.size(); i++) {
                 NodeScrape.SensorCounts a = now.sensor(ids.get(i));
                 NodeScrape.SensorCounts b = before.sensor(ids.get(i));
-                long counted = a.get(NodeCounter.PACKETS_TCP) + a.get(NodeCounter.PACKETS_UDP)
-                        - b.get(NodeCounter.PACKETS_TCP) - b.get(NodeCounter.PACKETS_UDP);
+                long counted = packetsIn(a) - packetsIn(b);
                 settled &= a.pending() == 0 && (settings.udp() || counted >= phases.get(i).packets());
                 sum += counted + a.get(NodeCounter.EVENTS_RECEIVED) + a.get(NodeCounter.EVENTS_SHED_LATENCY)
                         + a.get(NodeCounter.EVENTS_SHED_QUEUE) + a.chainInput();

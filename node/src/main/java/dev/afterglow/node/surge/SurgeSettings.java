@@ -25,6 +25,7 @@ import java.nio.file.Path;
  * @param out folder for the CSV and the PNG
  * @param subscriberRateHz frames per second each subscriber asks for (0: every frame)
  * @param seed seed of the synthetic sensor
+ * @param kafka where the sensors send and the frames come from when they go through Kafka, or null
  */
 public record SurgeSettings(
         String nodeHost,
@@ -45,7 +46,20 @@ public record SurgeSettings(
         long packetUs,
         Path out,
         double subscriberRateHz,
-        long seed) {
+        long seed,
+        KafkaRoute kafka) {
+
+    /**
+     * Sensors produce to {@code eventTopic} on {@code bootstrap} (the node consumes it); frames are
+     * read from {@code frameTopic} if set (one reader per sensor), else from subscriber connections.
+     */
+    public record KafkaRoute(String bootstrap, String eventTopic, String frameTopic) {
+    }
+
+    /** The transport's name for reports. */
+    public String transportName() {
+        return kafka != null ? "kafka" : udp ? "udp" : "tcp";
+    }
 
     /** Id of sensor {@code i}. */
     public static String sensorId(int i) {
