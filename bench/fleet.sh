@@ -11,7 +11,8 @@
 #
 # Usage: bench/fleet.sh [OUT_DIR]   (default bench-results/fleet-YYYYmmdd-HHMMSS)
 # Environment: FLEET_RATES ["2.5M"] events/s per sensor; FLEET_SENSORS [4]; FLEET_STEP_SECONDS [10];
-#   FLEET_PARTITIONS [4]; FLEET_WIDTH/FLEET_HEIGHT [640/480]; BENCH_MVN_FLAGS (e.g. -o).
+#   FLEET_PARTITIONS [4]; FLEET_WIDTH/FLEET_HEIGHT [640/480]; FLEET_FRAME_RATE [25] frames/s per sensor
+#   on the frame topic (the nodes read out at 100 Hz); BENCH_MVN_FLAGS (e.g. -o).
 set -euo pipefail
 repo="$(cd "$(dirname "$0")/.." && pwd)"
 out="${1:-$repo/bench-results/fleet-$(date +%Y%m%d-%H%M%S)}"
@@ -22,6 +23,7 @@ sensors="${FLEET_SENSORS:-4}"
 step="${FLEET_STEP_SECONDS:-10}"
 partitions="${FLEET_PARTITIONS:-4}"
 width="${FLEET_WIDTH:-640}"
+frame_rate="${FLEET_FRAME_RATE:-25}"
 height="${FLEET_HEIGHT:-480}"
 cd "$repo"
 
@@ -57,6 +59,7 @@ kafka:
   member-name: $1
   event-topic: fleet.events
   frame-topic: fleet.frames
+  frame-rate-hz: $frame_rate
   session-timeout-ms: 3000
 YAML
 }
@@ -74,10 +77,11 @@ run() { # label nodes
   for h in "${https[@]}"; do
     for _ in $(seq 1 120); do curl -sf "http://127.0.0.1:$h/health" > /dev/null && break; sleep 0.5; done
   done
-  local t0 b0 s0; t0=$(date +%s.%N); b0=$(cpu_ticks "$broker")
+  local hl; hl=$(printf '127.0.0.1:%s,' "${https[@]}"); hl="${hl%,}"
+  local t0 b0; t0=$(date +%s.%N); b0=$(cpu_ticks "$broker")
   declare -A n0; for p in "${node_pids[@]}"; do n0[$p]=$(cpu_ticks "$p"); done
   java -Xmx1g -jar "$jar" surge --transport kafka --kafka "127.0.0.1:$kport" --event-topic fleet.events \
-      --frame-topic fleet.frames --http "127.0.0.1:${https[0]}" --sensors "$sensors" --rates "$rates" \
+      --frame-topic fleet.frames --subscriber-rate "$frame_rate" --http "$hl" --sensors "$sensors" --rates "$rates" \
       --step-seconds "$step" --warmup-seconds 3 --width "$width" --height "$height" --out "$out/$label" \
       > "$out/$label-surge.log" 2>&1 &
   local surge=$!

@@ -28,7 +28,8 @@ public final class SurgeCommand implements Callable<Integer> {
     @Option(names = "--subscribe", paramLabel = "HOST:PORT", description = "Node's subscriber port. Default: ${DEFAULT-VALUE}")
     String subscribe = "127.0.0.1:7303";
 
-    @Option(names = "--http", paramLabel = "HOST:PORT", description = "Node's HTTP port, for its counters (/metrics, /status). Default: ${DEFAULT-VALUE}")
+    @Option(names = "--http", paramLabel = "HOST:PORT[,HOST:PORT...]", description = "Node's HTTP port, for its counters (/metrics, /status); "
+            + "with --transport kafka, every member of the node's group, comma-separated (their counters are summed). Default: ${DEFAULT-VALUE}")
     String http = "127.0.0.1:7380";
 
     @Option(names = "--transport", description = "tcp, udp or kafka (sensors produce to --event-topic; the node consumes it). Default: ${DEFAULT-VALUE}")
@@ -72,7 +73,8 @@ public final class SurgeCommand implements Callable<Integer> {
     @Option(names = "--packet-us", description = "Sensor time per packet in microseconds, 100 .. 100000. Default: ${DEFAULT-VALUE}")
     long packetUs = 1000;
 
-    @Option(names = "--subscriber-rate", description = "Frames per second each subscriber asks for, 0 (every frame) .. 1000. Default: ${DEFAULT-VALUE}")
+    @Option(names = "--subscriber-rate", description = "Frames per second each subscriber asks for, 0 (every frame) .. 1000; with --frame-topic, "
+            + "the node's kafka.frame-rate-hz. Default: ${DEFAULT-VALUE}")
     double subscriberRate = 0;
 
     @Option(names = "--out", paramLabel = "DIR", description = "Folder for surge.csv and surge-latency.png. Default: ${DEFAULT-VALUE}")
@@ -97,7 +99,13 @@ public final class SurgeCommand implements Callable<Integer> {
     SurgeSettings settings() {
         HostPort ingest = HostPort.parse("--node", node);
         HostPort subscriberPort = HostPort.parse("--subscribe", subscribe);
-        HostPort httpPort = HostPort.parse("--http", http);
+        String[] https = http.split(",");
+        HostPort httpPort = HostPort.parse("--http", https[0].trim());
+        java.util.List<String> moreHttp = new java.util.ArrayList<>();
+        for (int i = 1; i < https.length; i++) {
+            HostPort more = HostPort.parse("--http", https[i].trim());
+            moreHttp.add(more.host() + ":" + more.port());
+        }
         if (!transport.equals("tcp") && !transport.equals("udp") && !transport.equals("kafka")) {
             throw new IllegalArgumentException("--transport=" + transport + ": expected tcp, udp or kafka");
         }
@@ -120,7 +128,7 @@ public final class SurgeCommand implements Callable<Integer> {
         Checks.range("--packet-us", packetUs, 100, 100_000);
         Checks.range("--subscriber-rate", subscriberRate, 0, 1000);
         return new SurgeSettings(ingest.host(), ingest.port(), subscriberPort.host(), subscriberPort.port(),
-                httpPort.host(), httpPort.port(), transport.equals("udp"), sensors, subscribers, rateList,
+                httpPort.host(), httpPort.port(), moreHttp, transport.equals("udp"), sensors, subscribers, rateList,
                 stepSeconds, warmupSeconds, width, height, kind, packetUs, out, subscriberRate, seed, route);
     }
 }

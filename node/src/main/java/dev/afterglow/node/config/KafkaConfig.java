@@ -22,6 +22,8 @@ import java.util.regex.Pattern;
  *   group: afterglow-processing
  *   frame-topic: afterglow.frames   # "" = no frame topic
  *   frame-format: gray8         # or log-f32
+ *   frame-rate-hz: 25           # 0: every frame of the sensor's grid
+ *   frame-downscale: 2          # 1, 2, 4 or 8
  * </pre>
  */
 public final class KafkaConfig {
@@ -52,6 +54,10 @@ public final class KafkaConfig {
     public String frameTopic = "";
     /** Pixels of frame records: gray8 or log-f32. */
     public String frameFormat = "gray8";
+    /** Frames per second written to the frame topic (every k-th frame of the sensor's grid); 0: every frame. */
+    public double frameRateHz;
+    /** Frame records are downscaled by this factor (1, 2, 4 or 8; box average), as a subscriber can ask. */
+    public int frameDownscale = 1;
     /** Offsets of the records handed to pipelines are committed this often. */
     public int commitIntervalMs = 200;
     /** A member that sends no heartbeat for this long is taken out of the group and its sensors move. */
@@ -123,6 +129,10 @@ public final class KafkaConfig {
         }
         if (!frameFormat.equals("gray8") && !frameFormat.equals("log-f32")) {
             throw new ConfigException(at + ".frame-format must be gray8 or log-f32, not " + frameFormat);
+        }
+        Checks.range(at + ".frame-rate-hz", frameRateHz, 0, 1000);
+        if (frameDownscale != 1 && frameDownscale != 2 && frameDownscale != 4 && frameDownscale != 8) {
+            throw new ConfigException(at + ".frame-downscale must be 1, 2, 4 or 8, not " + frameDownscale);
         }
         Checks.range(at + ".commit-interval-ms", commitIntervalMs, 10, 60_000);
         Checks.range(at + ".session-timeout-ms", sessionTimeoutMs, 500, 600_000);

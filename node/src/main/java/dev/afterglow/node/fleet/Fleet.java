@@ -23,6 +23,16 @@ import org.apache.kafka.clients.producer.KafkaProducer;
  * producer last (pipelines flush their last frames into it).
  */
 public final class Fleet implements AutoCloseable {
+    /**
+     * The Kafka clients' own logging, through SLF4J into java.util.logging: warnings and errors
+     * only (at INFO they print every client's whole configuration). Held here: a logger nobody
+     * references may be collected and forget its level.
+     */
+    private static final java.util.logging.Logger KAFKA_LOG = java.util.logging.Logger.getLogger("org.apache.kafka");
+
+    static {
+        KAFKA_LOG.setLevel(java.util.logging.Level.WARNING);
+    }
     private final KafkaConfig config;
     private final NodeClock clock;
     private final Counters nodeCounters;
@@ -77,7 +87,8 @@ public final class Fleet implements AutoCloseable {
         }
         String member = config.member();
         PixelFormat format = config.frameFormat.equals("log-f32") ? PixelFormat.PIXEL_FORMAT_LOG_F32 : PixelFormat.PIXEL_FORMAT_GRAY8;
-        return (id, c) -> List.<FrameSink>of(new FrameTopicSink(frameProducer, config.frameTopic, format, clock, id, c, member));
+        return (id, c) -> List.<FrameSink>of(new FrameTopicSink(frameProducer, config.frameTopic, format,
+                config.frameDownscale, config.frameRateHz, clock, id, c, member));
     }
 
     /** What stands in front of each pipeline for TCP and UDP messages (the edge's forwarder, if forwarding). */

@@ -4,6 +4,7 @@ import dev.afterglow.node.pipeline.NodeClock;
 import dev.afterglow.node.publish.FrameData;
 import dev.afterglow.node.publish.FrameEnvelopes;
 import dev.afterglow.node.publish.FrameSink;
+import dev.afterglow.node.publish.Subscription;
 import dev.afterglow.node.stats.Counters;
 import dev.afterglow.node.stats.NodeCounter;
 import dev.afterglow.node.stats.OnceLog;
@@ -13,8 +14,9 @@ import org.apache.kafka.clients.producer.KafkaProducer;
 import org.apache.kafka.clients.producer.ProducerRecord;
 
 /**
- * One sensor's frames to the frame topic: each frame read out is written whole, in the configured
- * pixel format, as the same envelope a subscriber receives (key: sensor id). Never blocks the
+ * One sensor's frames to the frame topic: frames at the configured rate, whole, in the configured
+ * pixel format and downscale, as the same envelope a subscriber with those settings receives (key:
+ * sensor id). Never blocks the
  * pipeline thread: a full producer buffer or a refused record drops the frame, counted.
  */
 final class FrameTopicSink implements FrameSink {
@@ -26,9 +28,17 @@ final class FrameTopicSink implements FrameSink {
     private final byte[] key;
     private final Callback onSent;
     private final byte[] member;
+    private final int downscale;
+    private final double rateHz;
 
-    FrameTopicSink(KafkaProducer<byte[], byte[]> producer, String topic, PixelFormat format, NodeClock clock,
-            String sensorId, Counters counters, String member) {
+    /**
+     * @param rateHz frames per second written (every k-th frame of the sensor's grid); 0: every frame
+     * @param downscale box-downscale factor of the records
+     */
+    FrameTopicSink(KafkaProducer<byte[], byte[]> producer, String topic, PixelFormat format, int downscale, double rateHz,
+            NodeClock clock, String sensorId, Counters counters, String member) {
+        this.downscale = downscale;
+        this.rateHz = rateHz;
         this.member = member.getBytes(java.nio.charset.StandardCharsets.UTF_8);
         this.producer = producer;
         this.topic = topic;
@@ -52,7 +62,11 @@ final class FrameTopicSink implements FrameSink {
 
     @Override
     public void accept(FrameData frame) {
-        byte[] value = FrameEnvelopes.whole(frame, format, clock.wallNanos(), clock.monotonicNanos() / 1000).toByteArray();
+        if (!Subscription.onRate(frame.frameIndex(), frame.sensorRateHz(), rateHz)) {
+            return;
+        }
+        byte[] value = FrameEnvelopes.whole(frame, format, downscale, clock.wallNanos(), clock.monotonicNanos() / 1000)
+                .toByteArray();
         try {
             ProducerRecord<byte[], byte[]> r = new ProducerRecord<>(topic, key, value);
             r.headers().add(EventRecords.MEMBER_HEADER, member);

@@ -17,9 +17,10 @@ public final class FrameEnvelopes {
     private FrameEnvelopes() {
     }
 
-    /** The whole frame in {@code format}, at full size. */
-    public static Envelope whole(FrameData f, PixelFormat format, long publishWallNanos, long nowMonotonicUs) {
-        return build(f, new Subscription.RenderKey(format, 0, 0, f.width(), f.height(), 1), publishWallNanos, nowMonotonicUs);
+    /** The whole frame in {@code format}, box-downscaled by {@code downscale} (1: full size). */
+    public static Envelope whole(FrameData f, PixelFormat format, int downscale, long publishWallNanos, long nowMonotonicUs) {
+        return build(f, new Subscription.RenderKey(format, 0, 0, f.width(), f.height(), downscale), publishWallNanos,
+                nowMonotonicUs);
     }
 
     static Envelope build(FrameData f, Subscription.RenderKey k, long publishWallNanos, long nowMonotonicUs) {

@@ -40,6 +40,15 @@ public final class Subscription {
 
     /** True if this subscriber takes the frame with grid index {@code frameIndex} (-1: off the grid) at sensor rate {@code sensorRateHz}. */
     boolean wants(long frameIndex, double sensorRateHz) {
+        return onRate(frameIndex, sensorRateHz, rateHz);
+    }
+
+    /**
+     * True if an output at {@code rateHz} (0: every frame) takes grid frame {@code frameIndex} of a
+     * sensor read out at {@code sensorRateHz}: every d-th frame, d = ceil(sensor rate / rate);
+     * a frame off the grid (index -1) only when it takes every frame.
+     */
+    public static boolean onRate(long frameIndex, double sensorRateHz, double rateHz) {
         if (rateHz <= 0) {
             return true;
         }

@@ -25,10 +25,19 @@ import java.util.Map;
 final class NodeScrape {
     private final HttpClient http = HttpClient.newBuilder().connectTimeout(Duration.ofSeconds(5)).build();
     private final ObjectMapper json = new ObjectMapper();
-    private final String base;
+    /** Base URLs of the nodes read: one, or every member of a Kafka group (their counters are summed). */
+    private final List<String> bases = new ArrayList<>();
 
     NodeScrape(String host, int port) {
-        this.base = "http://" + host + ":" + port;
+        this(host, port, List.of());
+    }
+
+    /** @param more further nodes as host:port */
+    NodeScrape(String host, int port, List<String> more) {
+        bases.add("http://" + host + ":" + port);
+        for (String m : more) {
+            bases.add("http://" + m);
+        }
     }
 
     /** A sensor as {@code /status} lists it. */
@@ -54,20 +63,21 @@ final class NodeScrape {
         }
     }
 
-    /** The node's sensors, by id. */
+    /** The nodes' sensors, by id (a sensor that several nodes list: the first node's view). */
     Map<String, SensorStatus> status() throws IOException {
-        JsonNode root = json.readTree(get("/status"));
         Map<String, SensorStatus> out = new HashMap<>();
-        for (JsonNode s : root.path("sensors")) {
-            out.put(s.path("id").asText(), new SensorStatus(s.path("id").asText(), s.path("width").asInt(),
-                    s.path("height").asInt(), s.path("chain").asText(), s.path("frameRateHz").asDouble()));
+        for (String base : bases) {
+            JsonNode root = json.readTree(get(base, "/status"));
+            for (JsonNode s : root.path("sensors")) {
+                out.putIfAbsent(s.path("id").asText(), new SensorStatus(s.path("id").asText(), s.path("width").asInt(),
+                        s.path("height").asInt(), s.path("chain").asText(), s.path("frameRateHz").asDouble()));
+            }
         }
         return out;
     }
 
     /** Counters of {@code sensorIds} (zeros for a sensor the node does not list) and the node's own. */
     Snapshot counters(Collection<String> sensorIds) throws IOException {
-        String text = get("/metrics");
         Map<String, NodeCounter> byName = new HashMap<>();
         for (NodeCounter c : NodeCounter.values()) {
             byName.put(promName(c.meterName()), c);
@@ -81,6 +91,19 @@ final class NodeScrape {
             extra.put(id, new long[2]);
         }
         long[] node = new long[NodeCounter.values().length];
+        for (String base : bases) {
+            addCounts(get(base, "/metrics"), byName, chainInput, pending, counters, extra, node);
+        }
+        Map<String, SensorCounts> sensors = new HashMap<>();
+        for (String id : sensorIds) {
+            sensors.put(id, new SensorCounts(counters.get(id), extra.get(id)[0], extra.get(id)[1]));
+        }
+        return new Snapshot(sensors, node);
+    }
+
+    /** Adds one node's counters to the sums (a sensor that moved between nodes has counts on both). */
+    private static void addCounts(String text, Map<String, NodeCounter> byName, String chainInput, String pending,
+            Map<String, long[]> counters, Map<String, long[]> extra, long[] node) {
         for (String line : text.split("\n")) {
             if (line.isEmpty() || line.charAt(0) == '#') {
                 continue;
@@ -92,22 +115,17 @@ final class NodeScrape {
             NodeCounter c = byName.get(s.name);
             String sensor = s.labels.get("sensor");
             if (c != null && c.scope() == NodeCounter.Scope.NODE) {
-                node[c.ordinal()] = Math.round(s.value);
+                node[c.ordinal()] += Math.round(s.value);
             } else if (sensor != null && counters.containsKey(sensor)) {
                 if (c != null) {
-                    counters.get(sensor)[c.ordinal()] = Math.round(s.value);
+                    counters.get(sensor)[c.ordinal()] += Math.round(s.value);
                 } else if (s.name.equals(chainInput) && "0".equals(s.labels.get("position"))) {
-                    extra.get(sensor)[0] = Math.round(s.value);
+                    extra.get(sensor)[0] += Math.round(s.value);
                 } else if (s.name.equals(pending)) {
-                    extra.get(sensor)[1] = Math.round(s.value);
+                    extra.get(sensor)[1] += Math.round(s.value);
                 }
             }
         }
-        Map<String, SensorCounts> sensors = new HashMap<>();
-        for (String id : sensorIds) {
-            sensors.put(id, new SensorCounts(counters.get(id), extra.get(id)[0], extra.get(id)[1]));
-        }
-        return new Snapshot(sensors, node);
     }
 
     /** Prometheus name of a counter: dots to underscores plus {@code _total} (Prometheus naming conventions). */
@@ -115,7 +133,7 @@ final class NodeScrape {
         return meterName.replace('.', '_') + "_total";
     }
 
-    private String get(String path) throws IOException {
+    private String get(String base, String path) throws IOException {
         try {
             HttpResponse<String> r = http.send(HttpRequest.newBuilder(URI.create(base + path))
                     .timeout(Duration.ofSeconds(10)).GET().build(), HttpResponse.BodyHandlers.ofString());

@@ -46,7 +46,7 @@ public final class Surge {
     /** Runs every step and writes the report; returns the steps' results. */
     public List<StepResult> run() throws IOException, InterruptedException {
         SurgeSettings s = settings;
-        NodeScrape scrape = new NodeScrape(s.httpHost(), s.httpPort());
+        NodeScrape scrape = new NodeScrape(s.httpHost(), s.httpPort(), s.moreHttp());
         scrape.status(); // fails early if the node's HTTP endpoints cannot be reached
         Files.createDirectories(s.out());
         out.printf(Locale.ROOT, "surge: %d sensor(s) %dx%d (%s) over %s to %s:%d, %d subscriber(s) each, rates %s per sensor,"
@@ -90,7 +90,8 @@ public final class Surge {
             for (int i = 0; i < s.sensors(); i++) {
                 double nodeRate = status.get(ids.get(i)).frameRateHz();
                 if (frameTopic != null) {
-                    probes.add(new SubscriberProbe(frameTopic.feed(ids.get(i)), null, senders.get(i), nodeRate, 0, "surge-topic-" + i));
+                    probes.add(new SubscriberProbe(frameTopic.feed(ids.get(i)), null, senders.get(i), nodeRate, s.subscriberRateHz(),
+                            "surge-topic-" + i));
                     continue;
                 }
                 for (int j = 0; j < s.subscribers(); j++) {

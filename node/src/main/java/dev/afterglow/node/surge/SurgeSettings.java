@@ -2,6 +2,7 @@ package dev.afterglow.node.surge;
 
 import dev.afterglow.filters.synth.SceneKind;
 import java.nio.file.Path;
+import java.util.List;
 
 /**
  * The validated settings of a load-generator run (checked by the {@code surge} command).
@@ -12,6 +13,7 @@ import java.nio.file.Path;
  * @param subscribePort node's subscriber port
  * @param httpHost node's HTTP host
  * @param httpPort node's HTTP port
+ * @param moreHttp further nodes' HTTP endpoints as host:port (the other members of a Kafka group), summed with the first
  * @param udp true to send over UDP (the node must already know the sensors), false for TCP
  * @param sensors number of sensors, ids {@code surge-0 ..}
  * @param subscribers subscribers per sensor
@@ -34,6 +36,7 @@ public record SurgeSettings(
         int subscribePort,
         String httpHost,
         int httpPort,
+        List<String> moreHttp,
         boolean udp,
         int sensors,
         int subscribers,
