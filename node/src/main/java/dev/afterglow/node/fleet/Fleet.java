@@ -23,16 +23,6 @@ import org.apache.kafka.clients.producer.KafkaProducer;
  * producer last (pipelines flush their last frames into it).
  */
 public final class Fleet implements AutoCloseable {
-    /**
-     * The Kafka clients' own logging, through SLF4J into java.util.logging: warnings and errors
-     * only (at INFO they print every client's whole configuration). Held here: a logger nobody
-     * references may be collected and forget its level.
-     */
-    private static final java.util.logging.Logger KAFKA_LOG = java.util.logging.Logger.getLogger("org.apache.kafka");
-
-    static {
-        KAFKA_LOG.setLevel(java.util.logging.Level.WARNING);
-    }
     private final KafkaConfig config;
     private final NodeClock clock;
     private final Counters nodeCounters;
@@ -49,6 +39,7 @@ public final class Fleet implements AutoCloseable {
 
     /** Checks the broker and topics and makes the producers; a {@code ConfigException} names what is wrong. */
     public static Fleet create(KafkaConfig config, NodeClock clock, Counters nodeCounters) {
+        KafkaLogging.quiet();
         Fleet f = new Fleet(config, clock, nodeCounters);
         Set<String> topics = new LinkedHashSet<>();
         if (config.forward || config.consume) {

@@ -124,11 +124,14 @@ final class SensorSender implements AutoCloseable {
      * throughput (linger 1 ms, 1 MiB batches).
      */
     static SensorSender kafka(String bootstrap, String topic, String id, int index, int width, int height) throws IOException {
+        dev.afterglow.node.fleet.KafkaLogging.quiet();
         Properties p = new Properties();
         p.put("bootstrap.servers", bootstrap);
         p.put("linger.ms", "1");
         p.put("batch.size", String.valueOf(1 << 20));
-        p.put("buffer.memory", String.valueOf(256L << 20));
+        // A small buffer: when the broker cannot keep up, send() blocks and the offered rate drops
+        // (as a TCP sender's socket pushes back), instead of records ageing in the producer.
+        p.put("buffer.memory", String.valueOf(16L << 20));
         p.put("max.request.size", String.valueOf(8 << 20));
         p.put("acks", "1");
         p.put("enable.idempotence", "false");
