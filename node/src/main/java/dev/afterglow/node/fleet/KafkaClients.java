@@ -39,7 +39,7 @@ final class KafkaClients {
      */
     static KafkaProducer<byte[], byte[]> producer(KafkaConfig c, String role) {
         Properties p = base(c);
-        p.putIfAbsent("linger.ms", "2");
+        p.putIfAbsent("linger.ms", "5"); // fewer, larger requests: the broker's cost is per request as much as per byte
         p.putIfAbsent("batch.size", String.valueOf(1 << 20));
         p.putIfAbsent("buffer.memory", String.valueOf(64L << 20));
         p.putIfAbsent("max.request.size", String.valueOf(Math.max(c.maxRecordBytes + 1024, 1 << 20)));
@@ -55,6 +55,10 @@ final class KafkaClients {
         p.putIfAbsent("auto.offset.reset", "earliest");
         p.putIfAbsent("max.partition.fetch.bytes", String.valueOf(Math.max(c.maxRecordBytes + 1024, 8 << 20)));
         p.putIfAbsent("fetch.max.bytes", String.valueOf(64 << 20));
+        // Fetches wait for 256 KiB or 10 ms, whichever comes first: thousands of tiny fetches a
+        // second cost the broker and this node more CPU than the data (10 ms of latency at most).
+        p.putIfAbsent("fetch.min.bytes", String.valueOf(256 << 10));
+        p.putIfAbsent("fetch.max.wait.ms", "10");
         p.put("group.id", c.group);
         p.put("enable.auto.commit", "false");
         p.put("partition.assignment.strategy", CooperativeStickyAssignor.class.getName());

@@ -121,13 +121,13 @@ final class SensorSender implements AutoCloseable {
     /**
      * Produces to the event topic as a sensor-side process would (record layout of the fleet: key
      * the sensor id, value the envelope), starting with the hello. The producer batches for
-     * throughput (linger 1 ms, 1 MiB batches).
+     * throughput (linger 5 ms, 1 MiB batches).
      */
     static SensorSender kafka(String bootstrap, String topic, String id, int index, int width, int height) throws IOException {
         dev.afterglow.node.fleet.KafkaLogging.quiet();
         Properties p = new Properties();
         p.put("bootstrap.servers", bootstrap);
-        p.put("linger.ms", "1");
+        p.put("linger.ms", "5");
         p.put("batch.size", String.valueOf(1 << 20));
         // A small buffer: when the broker cannot keep up, send() blocks and the offered rate drops
         // (as a TCP sender's socket pushes back), instead of records ageing in the producer.

@@ -49,7 +49,8 @@ class DockerAssetsTest {
                 assertTrue(Files.isRegularFile(context.resolve(build.path("dockerfile").asText())), s.getKey() + " dockerfile");
             }
         }
-        assertEquals(5, checked, "bind mounts: node config, prometheus.yml, two Grafana provisioning folders, dashboards");
+        assertEquals(8, checked, "bind mounts: node config, edge config, member config (twice), prometheus.yml,"
+                + " two Grafana provisioning folders, dashboards");
     }
 
     @Test
@@ -107,6 +108,23 @@ class DockerAssetsTest {
         JsonNode prometheus = DockerFiles.YAML.readTree(DockerFiles.docker().resolve("prometheus/prometheus.yml").toFile());
         JsonNode job = prometheus.path("scrape_configs").path(0);
         assertEquals("node:" + c.listen.httpPort, job.path("static_configs").path(0).path("targets").path(0).asText());
+        // The fleet's nodes, each at the HTTP port its configuration sets.
+        List<String> fleetTargets = new ArrayList<>();
+        prometheus.path("scrape_configs").path(1).path("static_configs").path(0).path("targets")
+                .forEach(t -> fleetTargets.add(t.asText()));
+        List<String> expected = new ArrayList<>();
+        for (String service : List.of("edge", "member-a", "member-b")) {
+            JsonNode svc = DockerFiles.service(service);
+            List<String> args = DockerFiles.command(svc);
+            NodeConfig fc = NodeConfig.load(DockerFiles.mountedFile(svc, DockerFiles.option(args, "--config")));
+            assertEquals("kafka:9092", fc.kafka.bootstrapServers, service);
+            expected.add(service + ":" + fc.listen.httpPort);
+        }
+        assertEquals(expected, fleetTargets);
+        List<String> fleetSensor = DockerFiles.command(DockerFiles.service("sensor-fleet"));
+        NodeConfig edge = NodeConfig.load(DockerFiles.mountedFile(DockerFiles.service("edge"), "/etc/afterglow/edge.yaml"));
+        assertEquals("edge:" + edge.listen.ingestTcpPort, DockerFiles.option(fleetSensor, "--node"));
+        assertTrue(edge.kafka.forward && !edge.kafka.processForwarded, "the edge forwards and does not process");
         assertEquals("1s", prometheus.path("global").path("scrape_interval").asText());
         assertTrue(DockerFiles.command(DockerFiles.service("prometheus")).contains("--config.file=/etc/prometheus/prometheus.yml"));
         assertTrue(DockerFiles.mountedFile(DockerFiles.service("prometheus"), "/etc/prometheus/prometheus.yml")
@@ -159,7 +177,7 @@ class DockerAssetsTest {
                 images.add(s.path("image").asText());
             }
         });
-        assertEquals(4, images.size(), images.toString()); // build, runtime, prometheus, grafana
+        assertEquals(6, images.size(), images.toString()); // build, runtime, kafka, kafka-topics, prometheus, grafana
         Pattern pinned = Pattern.compile("[^:]+:v?\\d+\\.\\d+\\.\\d+[-_a-z0-9.]*");
         for (String image : images) {
             assertTrue(pinned.matcher(image).matches(), image + " is not pinned to a release");

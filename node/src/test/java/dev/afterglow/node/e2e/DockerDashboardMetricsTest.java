@@ -9,9 +9,15 @@ import dev.afterglow.node.AfterglowNode;
 import dev.afterglow.node.client.SensorClient;
 import dev.afterglow.node.client.SubscriberClient;
 import dev.afterglow.node.client.UdpSensorClient;
+import dev.afterglow.node.config.NodeConfig;
 import dev.afterglow.node.stats.NodeCounter;
 import dev.afterglow.proto.v1.PixelFormat;
+import dev.afterglow.node.fleet.KafkaTestBroker;
 import java.net.http.HttpClient;
+import java.nio.file.Files;
+import java.nio.file.Path;
+import org.apache.kafka.clients.admin.Admin;
+import org.apache.kafka.clients.admin.NewTopic;
 import java.net.http.HttpResponse;
 import java.time.Duration;
 import java.util.LinkedHashMap;
@@ -31,7 +37,7 @@ import org.junit.jupiter.api.Timeout;
  * parcel-line scene in real time, and every metric name in every dashboard query must be a series
  * the node's /metrics really exports.
  */
-@Timeout(value = 60, unit = TimeUnit.SECONDS)
+@Timeout(value = 120, unit = TimeUnit.SECONDS)
 class DockerDashboardMetricsTest {
     private static final int W = 64;
     private static final int H = 48;
@@ -58,6 +64,8 @@ class DockerDashboardMetricsTest {
                 "afterglow_latency_readout_to_socket_max_seconds", "afterglow_stage_time_seconds", "afterglow_stage_time_max_seconds"));
         TOPICS.put("processing lag", List.of("afterglow_processing_lag_seconds"));
         TOPICS.put("subscribers connected", List.of("afterglow_subscribers_connected"));
+        TOPICS.put("fleet: partitions owned, consumer lag, rebalances, skipped records", List.of("afterglow_kafka_partitions_owned",
+                "afterglow_kafka_consumer_lag_records", "afterglow_kafka_rebalances_total", "afterglow_kafka_skipped_records_total"));
         TOPICS.put("frames published and missed", List.of("afterglow_frames_published_total", "afterglow_frames_missed_total"));
     }
 
@@ -95,7 +103,8 @@ class DockerDashboardMetricsTest {
 
             HttpResponse<String> metrics = HttpEndpointsTest.get(http, node.httpPort(), "/metrics");
             assertEquals(200, metrics.statusCode());
-            String text = metrics.body();
+            // The node's series first (samples are looked up first-match), then the fleet's.
+            String text = metrics.body() + fleetMetrics(http);
             Set<String> exported = DockerFiles.sampleNames(text);
             assertEquals(1, HttpEndpointsTest.sample(text, "afterglow_subscribers_connected"));
 
@@ -129,6 +138,36 @@ class DockerDashboardMetricsTest {
             assertTrue(exported.contains(lv.group(1)), lv.group(1));
             for (String sensor : List.of("parcel-line", udpSensor)) {
                 assertTrue(!Double.isNaN(HttpEndpointsTest.sample(text, lv.group(1), lv.group(2) + "=\"" + sensor + "\"")), sensor);
+            }
+        }
+    }
+
+    /**
+     * The compose fleet's nodes on loopback around a real broker: the edge (its configuration, a
+     * sensor streaming into it) and a processing-group member (its configuration), whose
+     * /metrics texts carry the series of the dashboard's fleet row.
+     */
+    private static String fleetMetrics(HttpClient http) throws Exception {
+        Path dir = Files.createTempDirectory("fleet-dashboard");
+        try (KafkaTestBroker broker = KafkaTestBroker.start(dir);
+                Admin admin = Admin.create(Map.of("bootstrap.servers", broker.bootstrap()))) {
+            NodeConfig edgeConfig = DockerFiles.fleetLoopbackConfig("edge", broker.bootstrap());
+            NodeConfig memberConfig = DockerFiles.fleetLoopbackConfig("member-a", broker.bootstrap());
+            admin.createTopics(List.of(new NewTopic(edgeConfig.kafka.eventTopic, 4, (short) 1),
+                    new NewTopic(memberConfig.kafka.frameTopic, 4, (short) 1))).all().get();
+            try (AfterglowNode member = AfterglowNode.start(memberConfig); AfterglowNode edge = AfterglowNode.start(edgeConfig)) {
+                StreamingEndToEndTest.waitFor(() -> member.fleet().source().partitionsOwned() == 4);
+                List<EventBatch> packets = SceneEvents.packets(W, H, 300_000, 2_000, 9);
+                try (SensorClient fleetSensor = SensorClient.connect("127.0.0.1", edge.ingestTcpPort(), "orchard-pan", W, H, false)) {
+                    for (EventBatch b : packets) {
+                        fleetSensor.sendEvents(b);
+                    }
+                    fleetSensor.flush();
+                    StreamingEndToEndTest.waitFor(() -> member.sensors().get("orchard-pan") != null
+                            && member.sensors().get("orchard-pan").counters().get(NodeCounter.KAFKA_FRAMES_PRODUCED) > 0);
+                }
+                return "\n" + HttpEndpointsTest.get(http, edge.httpPort(), "/metrics").body()
+                        + "\n" + HttpEndpointsTest.get(http, member.httpPort(), "/metrics").body();
             }
         }
     }

@@ -107,6 +107,25 @@ final class DockerFiles {
         return YAML.writeValueAsString(tree);
     }
 
+    /**
+     * A fleet service's node configuration (edge, member-a, member-b) with the listen address on
+     * loopback, every listener that is on at a free port, and the given Kafka bootstrap server.
+     */
+    static NodeConfig fleetLoopbackConfig(String service, String bootstrap) throws IOException {
+        JsonNode svc = service(service);
+        ObjectNode tree = (ObjectNode) YAML.readTree(mountedFile(svc, option(command(svc), "--config")).toFile());
+        ObjectNode listen = (ObjectNode) tree.path("listen");
+        listen.put("address", "127.0.0.1");
+        for (String port : List.of("ingest-tcp-port", "ingest-udp-port", "subscriber-port", "http-port")) {
+            if (listen.path(port).asInt() > 0) {
+                listen.put(port, 0);
+            }
+        }
+        ((ObjectNode) tree.path("kafka")).put("bootstrap-servers", bootstrap);
+        tree.put("warm-up", false);
+        return NodeConfig.parse(YAML.writeValueAsString(tree), "docker " + service + " (loopback)");
+    }
+
     static NodeConfig loopbackConfig() throws IOException {
         return NodeConfig.parse(loopbackConfigYaml(), "docker/node (loopback)");
     }

@@ -66,7 +66,7 @@ class SurgeCommandTest {
         assertRefused("--subscribers=65.0 outside [0, 64]", "--subscribers", "65");
         assertRefused("--step-seconds=0.1 outside [0.5, 3600]", "--step-seconds", "0.1");
         assertRefused("--packet-us=50.0 outside [100, 100000]", "--packet-us", "50");
-        assertRefused("--transport=sctp: expected tcp or udp", "--transport", "sctp");
+        assertRefused("--transport=sctp: expected tcp, udp or kafka", "--transport", "sctp");
         assertRefused("--http=localhost: expected HOST:PORT", "--http", "localhost");
         assertRefused("--scene=meadow: expected one of parcel-line, dock-door, orchard-pan, floodlit-hoist, stockroom-pan, "
                 + "rink-shot, parcel-line_dark, dock-door_dark, orchard-pan_dark, floodlit-hoist_dark, stockroom-pan_dark, "
