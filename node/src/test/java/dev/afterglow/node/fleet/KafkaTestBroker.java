@@ -23,6 +23,10 @@ import org.apache.kafka.common.utils.Time;
  * session timeout is 6 s). {@link #main} runs one for the fleet benchmark script.
  */
 public final class KafkaTestBroker implements AutoCloseable {
+    static {
+        dev.afterglow.node.fleet.KafkaLogging.quiet(); // the tests' own clients: warnings only
+    }
+
     private final KafkaRaftServer server;
     private final int port;
     private final Path logDir;
