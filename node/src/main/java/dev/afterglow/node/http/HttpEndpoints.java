@@ -144,6 +144,7 @@ public final class HttpEndpoints extends SimpleChannelInboundHandler<FullHttpReq
             s.put("pendingPackets", p.pendingPackets());
             s.put("lagSeconds", p.lagNanos() / 1e9);
             s.put("recording", p.recorder() == null ? "off" : p.recorder().status());
+            s.put("fromEventTopic", sensors.fromEventTopic(p.id()));
             for (Subscription sub : publisher.subscriptions(p.id())) {
                 ObjectNode o = subscriberList.addObject();
                 o.put("sensor", sub.sensorId());

@@ -204,6 +204,11 @@ public final class SensorRegistry {
         return new Attach(p, p, null, null);
     }
 
+    /** True while this node takes the sensor from the event topic (it owns the sensor's partition). */
+    public boolean fromEventTopic(String sensorId) {
+        return fromBus.contains(sensorId);
+    }
+
     /** The sensor left this node's share of the event topic. */
     public void detachFromBus(String sensorId) {
         if (fromBus.remove(sensorId)) {

@@ -8,6 +8,7 @@ import dev.afterglow.filters.EventBatch;
 import dev.afterglow.node.AfterglowNode;
 import dev.afterglow.node.client.SensorClient;
 import dev.afterglow.node.client.SubscriberClient;
+import dev.afterglow.node.config.ConfigException;
 import dev.afterglow.node.config.NodeConfig;
 import dev.afterglow.node.e2e.SceneEvents;
 import dev.afterglow.node.stats.Counters;
@@ -385,5 +386,16 @@ class FleetEndToEndTest {
             assertEquals(stale, c.get(NodeCounter.KAFKA_SKIPPED_RECORDS), "every record older than the budget skipped");
             assertEquals(staleEvents, c.get(NodeCounter.KAFKA_SKIPPED_EVENTS));
         }
+    }
+
+    @Test
+    void aMissingTopicIsAClearStartUpError() {
+        NodeConfig config = NodeConfig.parse("""
+                listen: {ingest-tcp-port: -1, ingest-udp-port: -1, subscriber-port: -1, http-port: -1}
+                warm-up: false
+                kafka: {bootstrap-servers: "%s", consume: true, event-topic: no-such-topic}
+                """.formatted(broker.bootstrap()), "test");
+        ConfigException e = org.junit.jupiter.api.Assertions.assertThrows(ConfigException.class, () -> AfterglowNode.start(config));
+        assertTrue(e.getMessage().contains("topic(s) [no-such-topic] do not exist on " + broker.bootstrap()), e.getMessage());
     }
 }
