@@ -12,7 +12,8 @@
 # Usage: bench/fleet.sh [OUT_DIR]   (default bench-results/fleet-YYYYmmdd-HHMMSS)
 # Environment: FLEET_RATES ["2.5M"] events/s per sensor; FLEET_SENSORS [4]; FLEET_STEP_SECONDS [10];
 #   FLEET_PARTITIONS [4]; FLEET_WIDTH/FLEET_HEIGHT [640/480]; FLEET_FRAME_RATE [25] frames/s per sensor
-#   on the frame topic (the nodes read out at 100 Hz); BENCH_MVN_FLAGS (e.g. -o).
+#   on the frame topic (the nodes read out at 100 Hz); FLEET_PIPELINE_THREADS [1] per node;
+#   BENCH_MVN_FLAGS (e.g. -o). The first step also warms the JVMs up: give it a low rate.
 set -euo pipefail
 repo="$(cd "$(dirname "$0")/.." && pwd)"
 out="${1:-$repo/bench-results/fleet-$(date +%Y%m%d-%H%M%S)}"
@@ -24,6 +25,7 @@ step="${FLEET_STEP_SECONDS:-10}"
 partitions="${FLEET_PARTITIONS:-4}"
 width="${FLEET_WIDTH:-640}"
 frame_rate="${FLEET_FRAME_RATE:-25}"
+pipeline_threads="${FLEET_PIPELINE_THREADS:-1}"
 height="${FLEET_HEIGHT:-480}"
 cd "$repo"
 
@@ -49,7 +51,7 @@ echo "fleet: broker on 127.0.0.1:$kport"
 node_config() { # name http-port
   cat > "$out/$1.yaml" <<YAML
 listen: {address: 127.0.0.1, ingest-tcp-port: -1, ingest-udp-port: -1, subscriber-port: -1, http-port: $2}
-limits: {max-events-per-packet: 65536}
+limits: {max-events-per-packet: 65536, pipeline-threads: $pipeline_threads}
 sensor-defaults: {frame-rate-hz: 100, latency-budget-ms: 50,
   chain: "refractory(period=100us) | background-activity(window=5ms) | high-pass(cutoff=3rad/s, contrast=0.2)"}
 kafka:
@@ -82,7 +84,7 @@ run() { # label nodes
   declare -A n0; for p in "${node_pids[@]}"; do n0[$p]=$(cpu_ticks "$p"); done
   java -Xmx1g -jar "$jar" surge --transport kafka --kafka "127.0.0.1:$kport" --event-topic fleet.events \
       --frame-topic fleet.frames --subscriber-rate "$frame_rate" --http "$hl" --sensors "$sensors" --rates "$rates" \
-      --step-seconds "$step" --warmup-seconds 3 --width "$width" --height "$height" --out "$out/$label" \
+      --step-seconds "$step" --warmup-seconds 5 --width "$width" --height "$height" --out "$out/$label" \
       > "$out/$label-surge.log" 2>&1 &
   local surge=$!
   local sg=0

@@ -54,4 +54,19 @@ class KafkaConfigTest {
         assertEquals("kafka.heartbeat-interval-ms=2000 > 1500",
                 error("{bootstrap-servers: 'b:9092', consume: true, session-timeout-ms: 3000, heartbeat-interval-ms: 2000}"));
     }
+
+    /** The edge and member configurations of the README's fleet recipe parse and validate as they stand. */
+    @Test
+    void readmeFleetRecipeConfigsValidate() throws Exception {
+        String readme = java.nio.file.Files.readString(java.nio.file.Path.of("..", "README.md"));
+        for (String file : java.util.List.of("edge.yaml", "member.yaml")) {
+            String start = "cat > " + file + " <<'YAML'\n";
+            int from = readme.indexOf(start);
+            assertTrue(from >= 0, file + " recipe in README");
+            from += start.length();
+            String yaml = readme.substring(from, readme.indexOf("\nYAML\n", from));
+            NodeConfig c = NodeConfig.parse(yaml, "README " + file);
+            assertTrue(c.kafka.enabled(), file);
+        }
+    }
 }
