@@ -108,7 +108,13 @@ public final class EventTopicSource implements ConsumerRebalanceListener, AutoCl
                     long arrival = clock.monotonicNanos();
                     long wallMs = clock.wallNanos() / 1_000_000L;
                     for (ConsumerRecord<byte[], byte[]> r : records) {
-                        handle(r, arrival, wallMs);
+                        try {
+                            handle(r, arrival, wallMs);
+                        } catch (RuntimeException e) { // one bad record costs that record, not the rest of the poll
+                            nodeCounters.increment(NodeCounter.INTERNAL_ERRORS);
+                            OnceLog.warn("kafka-record:" + e.getClass().getName(), "event topic " + r.topic() + "-"
+                                    + r.partition() + " offset " + r.offset() + ": record skipped after an unexpected error: " + e, e);
+                        }
                     }
                     long now = System.nanoTime();
                     if (now - lastCommitNanos >= config.commitIntervalMs * 1_000_000L) {
