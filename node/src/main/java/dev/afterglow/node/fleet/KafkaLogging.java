@@ -10,9 +10,12 @@ import java.util.logging.Logger;
  */
 public final class KafkaLogging {
     private static final Logger KAFKA = Logger.getLogger("org.apache.kafka");
+    /** The broker's own classes (package {@code kafka}), when a test or a benchmark runs one in this JVM. */
+    private static final Logger BROKER = Logger.getLogger("kafka");
 
     static {
         KAFKA.setLevel(Level.WARNING);
+        BROKER.setLevel(Level.WARNING);
     }
 
     private KafkaLogging() {
