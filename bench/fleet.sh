@@ -13,7 +13,7 @@
 # Environment: FLEET_RATES ["2.5M"] events/s per sensor; FLEET_SENSORS [4]; FLEET_STEP_SECONDS [10];
 #   FLEET_PARTITIONS [4]; FLEET_WIDTH/FLEET_HEIGHT [640/480]; FLEET_FRAME_RATE [25] frames/s per sensor
 #   on the frame topic (the nodes read out at 100 Hz); FLEET_PIPELINE_THREADS [1] per node;
-#   BENCH_MVN_FLAGS (e.g. -o). The first step also warms the JVMs up: give it a low rate.
+#   FLEET_PACKET_US [1000] sensor time per packet (one record each); BENCH_MVN_FLAGS (e.g. -o). The first step also warms the JVMs up: give it a low rate.
 set -euo pipefail
 repo="$(cd "$(dirname "$0")/.." && pwd)"
 out="${1:-$repo/bench-results/fleet-$(date +%Y%m%d-%H%M%S)}"
@@ -26,6 +26,7 @@ partitions="${FLEET_PARTITIONS:-4}"
 width="${FLEET_WIDTH:-640}"
 frame_rate="${FLEET_FRAME_RATE:-25}"
 pipeline_threads="${FLEET_PIPELINE_THREADS:-1}"
+packet_us="${FLEET_PACKET_US:-1000}"
 height="${FLEET_HEIGHT:-480}"
 cd "$repo"
 
@@ -84,7 +85,7 @@ run() { # label nodes
   declare -A n0; for p in "${node_pids[@]}"; do n0[$p]=$(cpu_ticks "$p"); done
   java -Xmx1g -jar "$jar" surge --transport kafka --kafka "127.0.0.1:$kport" --event-topic fleet.events \
       --frame-topic fleet.frames --subscriber-rate "$frame_rate" --http "$hl" --sensors "$sensors" --rates "$rates" \
-      --step-seconds "$step" --warmup-seconds 5 --width "$width" --height "$height" --out "$out/$label" \
+      --step-seconds "$step" --warmup-seconds 5 --width "$width" --height "$height" --packet-us "$packet_us" --out "$out/$label" \
       > "$out/$label-surge.log" 2>&1 &
   local surge=$!
   local sg=0
