@@ -46,7 +46,8 @@ import org.apache.kafka.common.errors.WakeupException;
  *
  * <p>Bounded latency: a record older than the sensor's latency budget plus
  * {@code transit-allowance-ms} when read is skipped (counted), so a node that fell behind, or
- * took a sensor over after a failure, skips ahead to live data. Hellos are never skipped.
+ * took a sensor over after a failure, skips ahead to live data. Hellos are never skipped one by
+ * one; a partition taken over with a backlog older than every budget is passed over at once.
  */
 public final class EventTopicSource implements ConsumerRebalanceListener, AutoCloseable {
     private static final long REREAD_SLACK_MS = 500;
@@ -337,8 +338,8 @@ public final class EventTopicSource implements ConsumerRebalanceListener, AutoCl
 
     @Override
     public void onPartitionsAssigned(Collection<TopicPartition> partitions) {
-        partitionsOwned = consumer.assignment().size();
         if (partitions.isEmpty()) {
+            partitionsOwned = consumer.assignment().size();
             return;
         }
         nodeCounters.increment(NodeCounter.KAFKA_REBALANCES);
@@ -352,8 +353,43 @@ public final class EventTopicSource implements ConsumerRebalanceListener, AutoCl
                 unclean.add(tp.toString());
             }
         }
+        long skipped = skipStaleBacklog(partitions, committed);
+        partitionsOwned = consumer.assignment().size(); // once they are ready to read
         LOG.log(System.Logger.Level.INFO, "event topic: took over " + partitions
-                + (unclean.isEmpty() ? "" : "; previous owner stopped uncleanly on " + unclean));
+                + (unclean.isEmpty() ? "" : "; previous owner stopped uncleanly on " + unclean)
+                + (skipped == 0 ? "" : "; skipped " + skipped + " records older than the latency budget"));
+    }
+
+    /**
+     * A partition taken over far behind its end (a member started after an outage, or a new group
+     * on a topic that keeps days of data) would be read record by record only to skip every one
+     * for its age. Instead the position moves at once to the first record younger than the
+     * largest latency budget plus the transit allowance (Kafka's time index,
+     * {@code offsetsForTimes}); what it passes over is counted. Hellos passed over repeat.
+     */
+    private long skipStaleBacklog(Collection<TopicPartition> partitions, Map<TopicPartition, OffsetAndMetadata> committed) {
+        long horizonMs = clock.wallNanos() / 1_000_000L - Math.round(registry.maxLatencyBudgetMs()) - config.transitAllowanceMs;
+        Map<TopicPartition, Long> query = new HashMap<>();
+        for (TopicPartition tp : partitions) {
+            query.put(tp, horizonMs);
+        }
+        Map<TopicPartition, org.apache.kafka.clients.consumer.OffsetAndTimestamp> young =
+                consumer.offsetsForTimes(query, Duration.ofSeconds(5));
+        Map<TopicPartition, Long> ends = consumer.endOffsets(partitions, Duration.ofSeconds(5));
+        Map<TopicPartition, Long> starts = consumer.beginningOffsets(partitions, Duration.ofSeconds(5));
+        long skipped = 0;
+        for (TopicPartition tp : partitions) {
+            OffsetAndMetadata om = committed.get(tp);
+            long from = om != null ? om.offset() : starts.getOrDefault(tp, 0L);
+            org.apache.kafka.clients.consumer.OffsetAndTimestamp y = young.get(tp);
+            long to = y != null ? y.offset() : ends.getOrDefault(tp, from); // none younger: all of it is stale
+            if (to > from) {
+                consumer.seek(tp, to);
+                skipped += to - from;
+            }
+        }
+        nodeCounters.add(NodeCounter.KAFKA_SKIPPED_AT_ASSIGN, skipped);
+        return skipped;
     }
 
     /** From a commit's metadata: if another member committed it and did not hand over cleanly, until when it may have applied records. */

@@ -204,6 +204,18 @@ public final class SensorRegistry {
         return new Attach(p, p, null, null);
     }
 
+    /** The largest latency budget of any sensor this node has or may get (listed, running, or unlisted defaults), ms. */
+    public double maxLatencyBudgetMs() {
+        double max = config.sensorDefaults.latencyBudgetMs;
+        for (SensorConfig s : config.sensors) {
+            max = Math.max(max, s.latencyBudgetMs);
+        }
+        for (SensorPipeline p : sensors.values()) {
+            max = Math.max(max, p.config().latencyBudgetMs); // changed at run time
+        }
+        return max;
+    }
+
     /** True while this node takes the sensor from the event topic (it owns the sensor's partition). */
     public boolean fromEventTopic(String sensorId) {
         return fromBus.contains(sensorId);

@@ -73,6 +73,7 @@ public enum NodeCounter {
     INTERNAL_ERRORS(Scope.NODE, "afterglow.internal.errors", "Unexpected exceptions caught by a handler (a bug; the loop keeps running)"),
     KAFKA_REBALANCES(Scope.NODE, "afterglow.kafka.rebalances", "Partition assignments of the event topic that changed this node's share (sensors moved in or out)"),
     KAFKA_RECORDS_MALFORMED(Scope.NODE, "afterglow.kafka.malformed.records", "Event-topic records refused: no key, a key that is not a sensor id, too large, not an envelope, or a key that differs from the sensor in the message"),
+    KAFKA_SKIPPED_AT_ASSIGN(Scope.NODE, "afterglow.kafka.skipped.at.assign.records", "Event-topic records passed over when a partition was taken over: older than every sensor's latency budget plus the transit allowance"),
     KAFKA_RECORDS_UNATTACHED(Scope.NODE, "afterglow.kafka.unattached.records", "Event-topic records of a sensor this node has not started: no hello seen yet (hellos repeat), or its hello was refused"),
     KAFKA_ERRORS(Scope.NODE, "afterglow.kafka.errors", "Kafka client errors: failed commits, polls or sends that the node retried or gave up"),
     TLS_HANDSHAKE_FAILURES(Scope.NODE, "afterglow.tls.handshake.failures", "TLS handshakes that failed (not TLS, timeout, untrusted or missing client certificate, client aborted); connection closed");

@@ -398,4 +398,33 @@ class FleetEndToEndTest {
         ConfigException e = org.junit.jupiter.api.Assertions.assertThrows(ConfigException.class, () -> AfterglowNode.start(config));
         assertTrue(e.getMessage().contains("topic(s) [no-such-topic] do not exist on " + broker.bootstrap()), e.getMessage());
     }
+
+    @Test
+    void aMemberStartingOnAnOldBacklogPassesOverItAtOnce() throws Exception {
+        String[] topic = newTopics();
+        List<EventBatch> packets = scene(19, 1.0);
+        int old = packets.size() / 2;
+        try (TopicSensor sensors = new TopicSensor(broker.bootstrap(), topic[0])) {
+            // Half the packets were produced a minute ago, before any member ran (an outage).
+            long aMinuteAgo = System.currentTimeMillis() - 60_000;
+            for (int i = 0; i < old; i++) {
+                sensors.eventsMadeAt("cam", i, packets.get(i), aMinuteAgo);
+            }
+            sensors.flush();
+            try (AfterglowNode node = AfterglowNode.start(member("o", topic, "g6", List.of("cam"), 50))) {
+                waitFor("owns every partition", 30, () -> owned(node) == 4);
+                assertEquals(old, node.counters().get(NodeCounter.KAFKA_SKIPPED_AT_ASSIGN), "the backlog passed over at once");
+                long fresh = 0;
+                for (int i = old; i < packets.size(); i++) {
+                    sensors.events("cam", i, packets.get(i));
+                    fresh += packets.get(i).size;
+                }
+                sensors.flush();
+                long expected = fresh;
+                waitFor("the live half applied", 30, () -> node.sensors().get("cam").counters().get(NodeCounter.EVENTS_KAFKA) == expected);
+                assertEquals(0, node.sensors().get("cam").counters().get(NodeCounter.KAFKA_SKIPPED_RECORDS),
+                        "nothing left to skip one by one");
+            }
+        }
+    }
 }
