@@ -44,6 +44,18 @@ public final class SensorConfig {
     /** Recording of what the sensor sends; null: none. */
     public RecordConfig record;
 
+    /** What a full queue does to this sensor's TCP packets: shed them (counted), or stop reading its connection until the queue drains. */
+    public static final String SHED = "shed";
+    /** See {@link #SHED}. */
+    public static final String BACKPRESSURE = "backpressure";
+    /**
+     * {@value #SHED} (default: a live sensor never waits for the node) or {@value #BACKPRESSURE}: the
+     * node stops reading the sensor's TCP connection while half its queue is taken and reads on once
+     * the queue has drained, so a source that is not live (a replay as fast as the node takes it, a
+     * file feeder) loses nothing. UDP and the event topic always shed.
+     */
+    public String overload = SHED;
+
     /** Parsed {@link #udpFrom}; valid after {@link #validate}. */
     AddressFilter udpSources;
 
@@ -77,6 +89,9 @@ public final class SensorConfig {
         udpSources = AddressFilter.parse(at + ".udp-from", udpFrom);
         if (record != null) {
             record.validate(at + ".record");
+        }
+        if (!SHED.equals(overload) && !BACKPRESSURE.equals(overload)) {
+            throw new ConfigException(at + ".overload must be " + SHED + " or " + BACKPRESSURE + ", not " + overload);
         }
         if (chain == null || chain.isBlank()) {
             chain = AUTO;
@@ -132,6 +147,11 @@ public final class SensorConfig {
         return udpSources;
     }
 
+    /** True when a full queue pauses the sensor's TCP connection instead of shedding its packets. */
+    public boolean backpressure() {
+        return BACKPRESSURE.equals(overload);
+    }
+
     /** True when the sensor must authenticate (hello token, sealed datagrams). */
     public boolean hasToken() {
         return token != null && !token.isEmpty();
@@ -159,6 +179,7 @@ public final class SensorConfig {
         c.udpFrom = new ArrayList<>(udpFrom);
         c.udpSources = udpSources;
         c.record = record == null ? null : record.copy();
+        c.overload = overload;
         return c;
     }
 }

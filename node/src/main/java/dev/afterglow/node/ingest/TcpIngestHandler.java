@@ -18,6 +18,7 @@ import io.netty.handler.codec.CorruptedFrameException;
 import io.netty.handler.codec.DecoderException;
 import io.netty.handler.codec.TooLongFrameException;
 import java.io.IOException;
+import java.util.ArrayDeque;
 
 /**
  * One sensor's TCP connection, after the length-prefix decoder: the first envelope must be a
@@ -34,6 +35,8 @@ public final class TcpIngestHandler extends SimpleChannelInboundHandler<ByteBuf>
     private SensorPipeline sensor;
     /** Where this sensor's messages go: its pipeline, or an edge's forwarder in front of it. */
     private SensorInput input;
+    /** Non-null while reading is paused for backpressure: messages decoded after the pause, in order. */
+    private ArrayDeque<Envelope> held;
 
     /**
      * @param onMessage called for every whole message (connection timeouts)
@@ -61,13 +64,18 @@ public final class TcpIngestHandler extends SimpleChannelInboundHandler<ByteBuf>
             case EVENTS -> {
                 if (sensor == null) {
                     protocolError(ctx, "events before hello");
+                } else if (held != null) {
+                    held.add(envelope); // paused: in order, after what waits already
                 } else {
                     input.events(envelope, arrival, Transport.TCP);
+                    pauseIfBacklogged(ctx);
                 }
             }
             case SENSOR_FRAME -> {
                 if (sensor == null) {
                     protocolError(ctx, "sensor frame before hello");
+                } else if (held != null) {
+                    held.add(envelope);
                 } else {
                     input.sensorFrame(envelope, arrival);
                 }
@@ -75,6 +83,53 @@ public final class TcpIngestHandler extends SimpleChannelInboundHandler<ByteBuf>
             default -> protocolError(ctx, "unexpected " + envelope.getBodyCase() + " on an ingest connection");
         }
     }
+
+    /**
+     * A sensor set to {@code overload: backpressure} whose queue is half taken: stop reading its
+     * connection (TCP then holds the sender back) until the packets queued so far are handled.
+     */
+    private void pauseIfBacklogged(ChannelHandlerContext ctx) {
+        if (sensor.config().backpressure() && sensor.backlogged()) {
+            pause(ctx);
+        }
+    }
+
+    /**
+     * Stops reading. Messages already read and decoded (at most one read's worth: Netty stops its
+     * read loop once auto-read is off) wait here, in order, and go first when the queue has drained.
+     */
+    private void pause(ChannelHandlerContext ctx) {
+        if (held == null) {
+            held = new ArrayDeque<>();
+            sensor.counters().increment(NodeCounter.BACKPRESSURE_PAUSES);
+        }
+        ctx.channel().config().setAutoRead(false);
+        sensor.afterQueued(() -> ctx.executor().execute(() -> resume(ctx)));
+    }
+
+    /** The queue drained: hand over what waits here, then read on (or pause again if it fills). On the connection's thread. */
+    private void resume(ChannelHandlerContext ctx) {
+        if (held == null || !ctx.channel().isActive()) {
+            return;
+        }
+        while (!held.isEmpty()) {
+            if (sensor.backlogged()) {
+                sensor.afterQueued(() -> ctx.executor().execute(() -> resume(ctx)));
+                return;
+            }
+            Envelope e = held.poll();
+            // Counted from now: the wait here was the node's own pause, not the sensor's lateness.
+            long now = clock.monotonicNanos();
+            if (e.getBodyCase() == Envelope.BodyCase.EVENTS) {
+                input.events(e, now, Transport.TCP);
+            } else {
+                input.sensorFrame(e, now);
+            }
+        }
+        held = null;
+        ctx.channel().config().setAutoRead(true);
+    }
+
 
     private void onHello(ChannelHandlerContext ctx, Envelope envelope) {
         if (sensor != null) {

@@ -475,6 +475,19 @@ public final class SensorPipeline implements SensorInput {
         return true;
     }
 
+    /** True while half the pending-packet queue (by count or bytes) is taken. Any thread. */
+    public boolean backlogged() {
+        return pending.get() >= maxPending / 2 || pendingBytes.get() >= maxPendingBytes / 2;
+    }
+
+    /**
+     * Runs {@code task} on the pipeline thread once every packet queued before it has been handled
+     * (tasks run in order): how a paused connection learns that the queue has drained. Any thread.
+     */
+    public void afterQueued(Runnable task) {
+        execute(task);
+    }
+
     /** Hands one of the sensor's own frames to the pipeline thread. Any thread. */
     public void offerFrame(SensorFrame frame) {
         lastInputNanos = clock.monotonicNanos();

@@ -20,6 +20,7 @@ public enum NodeCounter {
     KAFKA_FORWARD_DROPPED(Scope.SENSOR, "afterglow.kafka.forward.dropped.messages", "Messages not forwarded: the producer's buffer was full or the broker refused them"),
     KAFKA_FRAMES_PRODUCED(Scope.SENSOR, "afterglow.kafka.frames.produced", "Frames written to the frame topic"),
     KAFKA_FRAMES_DROPPED(Scope.SENSOR, "afterglow.kafka.frames.dropped", "Frames not written to the frame topic: the producer's buffer was full or the broker refused them"),
+    BACKPRESSURE_PAUSES(Scope.SENSOR, "afterglow.ingest.backpressure.pauses", "Times the node stopped reading a sensor's TCP connection until its queue drained (overload: backpressure)"),
     EVENTS_REJECTED(Scope.SENSOR, "afterglow.ingest.rejected.events", "Events in packets rejected whole: malformed, or UDP duplicate or too late"),
     EVENTS_RECEIVED(Scope.SENSOR, "afterglow.ingest.events", "Events in packets that reached the chain (not shed, not malformed)"),
     SENSOR_FRAMES(Scope.SENSOR, "afterglow.ingest.sensor.frames", "The sensor's own frames received"),

@@ -142,4 +142,43 @@ class ReplayEndToEndTest {
             assertEquals(0, counters.get(NodeCounter.PACKETS_PAST) + counters.get(NodeCounter.PACKETS_FUTURE));
         }
     }
+
+    /**
+     * As fast as the node takes it: with {@code overload: backpressure} the node stops reading the
+     * replay's connection while its (small, here) queue is half taken, so nothing is shed; with the
+     * default {@code shed}, the same replay loses packets to the full queue.
+     */
+    @Test
+    void shouldLoseNothingAtFullSpeedIntoASensorWithBackpressure() throws Exception {
+        List<EventBatch> packets = SceneEvents.packets(StreamingEndToEndTest.W, StreamingEndToEndTest.H, 2_000_000, 200, 25);
+        Path recording = record(packets);
+        long events = packets.stream().mapToLong(b -> b.size).sum();
+        for (String overload : List.of("backpressure", "shed")) {
+            NodeConfig config = NodeConfig.parse("""
+                    listen: {ingest-tcp-port: 0, ingest-udp-port: -1, subscriber-port: -1, http-port: -1}
+                    warm-up: false
+                    limits: {max-pending-packets: 8, max-time-ahead-ms: 3600000}
+                    sensors:
+                      - {id: bench, width: %d, height: %d, frame-rate-hz: 100, latency-budget-ms: 10000, chain: '%s', overload: %s}
+                    """.formatted(StreamingEndToEndTest.W, StreamingEndToEndTest.H, CHAIN, overload), "test");
+            try (AfterglowNode node = AfterglowNode.start(config)) {
+                try (SensorClient c = SensorClient.connect("127.0.0.1", node.ingestTcpPort(),
+                        SensorClient.hello("bench", StreamingEndToEndTest.W, StreamingEndToEndTest.H, false, ""))) {
+                    new Replayer(recording, 0, 0, 3).run(Replayer.Target.of(c));
+                }
+                var counters = node.sensors().get("bench").counters();
+                StreamingEndToEndTest.waitFor(() -> counters.get(NodeCounter.EVENTS_TCP) == 3 * events
+                        && node.sensors().get("bench").pendingPackets() == 0);
+                long shed = counters.get(NodeCounter.EVENTS_SHED_QUEUE) + counters.get(NodeCounter.EVENTS_SHED_LATENCY);
+                if (overload.equals("backpressure")) {
+                    assertEquals(0, shed, "nothing shed");
+                    assertEquals(3 * events, counters.get(NodeCounter.EVENTS_RECEIVED), "every event applied");
+                    assertTrue(counters.get(NodeCounter.BACKPRESSURE_PAUSES) > 0, "the connection was paused");
+                } else {
+                    assertTrue(counters.get(NodeCounter.EVENTS_SHED_QUEUE) > 0, "a full queue sheds without backpressure");
+                    assertEquals(0, counters.get(NodeCounter.BACKPRESSURE_PAUSES));
+                }
+            }
+        }
+    }
 }
