@@ -61,6 +61,11 @@ final class FrameTopicSink implements FrameSink {
     }
 
     @Override
+    public boolean wantsFrame(long frameIndex, double sensorRateHz) {
+        return Subscription.onRate(frameIndex, sensorRateHz, rateHz);
+    }
+
+    @Override
     public void accept(FrameData frame) {
         if (!Subscription.onRate(frame.frameIndex(), frame.sensorRateHz(), rateHz)) {
             return;

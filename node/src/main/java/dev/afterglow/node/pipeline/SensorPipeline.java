@@ -826,9 +826,9 @@ public final class SensorPipeline implements SensorInput {
         }
     }
 
-    private boolean wanted() {
+    private boolean wanted(long gridIndex) {
         for (int i = 0; i < sinks.size(); i++) {
-            if (sinks.get(i).wantsFrames()) {
+            if (sinks.get(i).wantsFrame(gridIndex, rateHz)) {
                 return true;
             }
         }
@@ -836,7 +836,7 @@ public final class SensorPipeline implements SensorInput {
     }
 
     private void readoutAndPublish(long frameTimeUs, long gridIndex) {
-        if (!wanted()) {
+        if (!wanted(gridIndex)) {
             // Nobody to show it to: skip the readout (the reconstruction's state does not depend on it).
             counters.increment(NodeCounter.FRAMES_UNREAD);
             chain.reconstruction().readoutSkipped(frameTimeUs);

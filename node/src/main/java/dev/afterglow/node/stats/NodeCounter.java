@@ -45,7 +45,7 @@ public enum NodeCounter {
     PIPELINE_STALLS(Scope.SENSOR, "afterglow.pipeline.stalls", "Times the watchdog found this sensor's pipeline with work and no progress"),
     FRAMES_SKIPPED(Scope.SENSOR, "afterglow.frames.skipped", "Frame times skipped because they were already older than the latency budget when due"),
     FRAMES_PUBLISHED(Scope.SENSOR, "afterglow.frames.published", "Frames read out and offered to subscribers"),
-    FRAMES_UNREAD(Scope.SENSOR, "afterglow.frames.unread", "Frame times that passed with nobody subscribed, so nothing was read out"),
+    FRAMES_UNREAD(Scope.SENSOR, "afterglow.frames.unread", "Frame times that passed with no sink wanting them (no subscriber or live view page, and not on the frame topic's rate), so nothing was read out"),
     RECORDED_MESSAGES(Scope.SENSOR, "afterglow.recording.messages", "Messages (hello, event packets, sensor frames) written to the sensor's recording"),
     RECORDING_DROPPED(Scope.SENSOR, "afterglow.recording.dropped.messages", "Messages not recorded: the recording queue was full or the recording had failed"),
     RECORDING_FAILURES(Scope.SENSOR, "afterglow.recording.failures", "Recordings stopped by a write error (disk full, file system error); live processing goes on"),

@@ -427,4 +427,49 @@ class FleetEndToEndTest {
             }
         }
     }
+
+    @Test
+    void theFrameTopicTakesFramesAtItsRateAndDownscaleAndOnlyThoseAreReadOut() throws Exception {
+        String[] topic = newTopics();
+        List<EventBatch> packets = scene(23, 1.0);
+        NodeConfig config = NodeConfig.parse("""
+                listen: {ingest-tcp-port: -1, ingest-udp-port: -1, subscriber-port: -1, http-port: -1}
+                warm-up: false
+                kafka: {bootstrap-servers: "%s", consume: true, group: g7, event-topic: %s, frame-topic: %s,
+                        frame-rate-hz: 10, frame-downscale: 2}
+                sensors:
+                %s""".formatted(broker.bootstrap(), topic[0], topic[1], sensorList(List.of("cam"), 10_000)), "rate");
+        try (AfterglowNode node = AfterglowNode.start(config);
+                TopicSensor sensors = new TopicSensor(broker.bootstrap(), topic[0]);
+                KafkaConsumer<byte[], byte[]> frames = frameConsumer(broker.bootstrap(), topic[1])) {
+            waitFor("owns every partition", 30, () -> owned(node) == 4);
+            long start = System.nanoTime();
+            for (int i = 0; i < packets.size(); i++) {
+                SceneEvents.paceRealTime(start, packets.get(i).timeBaseUs + 1_000);
+                sensors.events("cam", i, packets.get(i));
+            }
+            sensors.flush();
+            List<IntensityFrame> got = new ArrayList<>();
+            long deadline = System.nanoTime() + 20_000_000_000L;
+            while (got.size() < 8 && System.nanoTime() < deadline) {
+                for (ConsumerRecord<byte[], byte[]> r : frames.poll(Duration.ofMillis(200))) {
+                    got.add(Envelope.parseFrom(r.value()).getIntensityFrame());
+                }
+            }
+            assertTrue(got.size() >= 8, got.size() + " frame records");
+            for (int i = 0; i < got.size(); i++) {
+                IntensityFrame f = got.get(i);
+                assertEquals(W / 2, f.getWidth());
+                assertEquals(H / 2, f.getHeight());
+                assertEquals(0, f.getFrameTimeUs() % 100_000, "every fifth frame of the 50 Hz grid: " + f.getFrameTimeUs());
+                if (i > 0) {
+                    assertEquals(100_000, f.getFrameTimeUs() - got.get(i - 1).getFrameTimeUs());
+                }
+            }
+            var c = node.sensors().get("cam").counters();
+            assertTrue(c.get(NodeCounter.FRAMES_UNREAD) >= 4 * c.get(NodeCounter.FRAMES_PUBLISHED) - 8,
+                    "the frames the topic does not take are not read out: unread " + c.get(NodeCounter.FRAMES_UNREAD)
+                            + ", published " + c.get(NodeCounter.FRAMES_PUBLISHED));
+        }
+    }
 }
