@@ -23,6 +23,7 @@ import org.apache.kafka.clients.producer.ProducerRecord;
  * full producer buffer or a refused record drops the message, counted per sensor.
  */
 public final class EventForwarder implements AutoCloseable {
+    private static final long FORGET_AFTER_NANOS = 60_000_000_000L;
     private final KafkaConfig config;
     private final KafkaProducer<byte[], byte[]> producer;
     private final Counters nodeCounters;
@@ -49,9 +50,12 @@ public final class EventForwarder implements AutoCloseable {
     /** Sends the hello of every sensor that sent something within two repeat periods. Called every {@code hello-repeat-ms}. */
     void repeatHellos(long nowNanos) {
         long recent = 2L * config.helloRepeatMs * 1_000_000L;
-        for (Forwarding f : sensors.values()) {
+        for (var it = sensors.values().iterator(); it.hasNext();) {
+            Forwarding f = it.next();
             SensorHello h = f.hello;
-            if (h != null && nowNanos - f.lastSentNanos < recent) {
+            if (nowNanos - f.lastSentNanos > FORGET_AFTER_NANOS) {
+                it.remove(); // silent for a minute (gone, or evicted): its next message starts it again
+            } else if (h != null && nowNanos - f.lastSentNanos < recent) {
                 f.send(Envelope.newBuilder().setSchemaVersion(Envelopes.SCHEMA_VERSION).setHello(h).build());
             }
         }
@@ -109,11 +113,15 @@ public final class EventForwarder implements AutoCloseable {
             }
         }
 
-        /** A UDP sensor says no hello: the topic gets one made from its configuration first. */
+        /**
+         * A UDP sensor says no hello: the topic gets one made from its configuration first. A sensor
+         * forgotten after a silence is registered again and its hello sent again.
+         */
         private void startIfNeeded() {
             if (hello == null) {
                 hello = pipeline.configHello();
-                sensors.put(pipeline.id(), this);
+            }
+            if (sensors.putIfAbsent(pipeline.id(), this) == null) {
                 send(Envelope.newBuilder().setSchemaVersion(Envelopes.SCHEMA_VERSION).setHello(hello).build());
             }
         }

@@ -130,7 +130,6 @@ public final class TcpIngestHandler extends SimpleChannelInboundHandler<ByteBuf>
         ctx.channel().config().setAutoRead(true);
     }
 
-
     private void onHello(ChannelHandlerContext ctx, Envelope envelope) {
         if (sensor != null) {
             protocolError(ctx, "second hello on one connection");
