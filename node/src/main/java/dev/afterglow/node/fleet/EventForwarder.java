@@ -4,15 +4,12 @@ import dev.afterglow.node.config.KafkaConfig;
 import dev.afterglow.node.pipeline.SensorInput;
 import dev.afterglow.node.pipeline.SensorPipeline;
 import dev.afterglow.node.pipeline.Transport;
-import dev.afterglow.node.stats.Counters;
 import dev.afterglow.node.stats.NodeCounter;
-import dev.afterglow.node.stats.OnceLog;
 import dev.afterglow.proto.v1.Envelope;
 import dev.afterglow.proto.v1.SensorHello;
 import dev.afterglow.node.wire.Envelopes;
 import java.util.Map;
 import java.util.concurrent.ConcurrentHashMap;
-import org.apache.kafka.clients.producer.Callback;
 import org.apache.kafka.clients.producer.KafkaProducer;
 import org.apache.kafka.clients.producer.ProducerRecord;
 
@@ -26,14 +23,12 @@ public final class EventForwarder implements AutoCloseable {
     private static final long FORGET_AFTER_NANOS = 60_000_000_000L;
     private final KafkaConfig config;
     private final KafkaProducer<byte[], byte[]> producer;
-    private final Counters nodeCounters;
     /** Sensors that forwarded, with their latest hello and when they last sent anything. */
     private final Map<String, Forwarding> sensors = new ConcurrentHashMap<>();
 
-    EventForwarder(KafkaConfig config, Counters nodeCounters) {
+    EventForwarder(KafkaConfig config, String member) {
         this.config = config;
-        this.nodeCounters = nodeCounters;
-        this.producer = KafkaClients.producer(config, "edge");
+        this.producer = KafkaClients.producer(config, "edge", member);
         try {
             KafkaClients.awaitMetadata(producer, config.eventTopic);
         } catch (RuntimeException e) {
@@ -71,7 +66,7 @@ public final class EventForwarder implements AutoCloseable {
         private final SensorPipeline pipeline;
         private final boolean process;
         private final byte[] key;
-        private final Callback onSent;
+        private final CountedSend sends;
         private volatile SensorHello hello;
         private volatile long lastSentNanos;
 
@@ -79,14 +74,8 @@ public final class EventForwarder implements AutoCloseable {
             this.pipeline = pipeline;
             this.process = process;
             this.key = EventRecords.key(pipeline.id());
-            Counters c = pipeline.counters();
-            this.onSent = (metadata, e) -> {
-                if (e == null) {
-                    c.increment(NodeCounter.KAFKA_FORWARDED);
-                } else {
-                    dropped(e);
-                }
-            };
+            this.sends = new CountedSend(producer, pipeline.counters(), NodeCounter.KAFKA_FORWARDED,
+                    NodeCounter.KAFKA_FORWARD_DROPPED, "a message of sensor " + pipeline.id());
         }
 
         @Override
@@ -128,17 +117,7 @@ public final class EventForwarder implements AutoCloseable {
 
         void send(Envelope envelope) {
             lastSentNanos = System.nanoTime();
-            try {
-                producer.send(new ProducerRecord<>(config.eventTopic, key, envelope.toByteArray()), onSent);
-            } catch (RuntimeException e) { // buffer full (max.block.ms = 0), record too large, producer closed
-                dropped(e);
-            }
-        }
-
-        private void dropped(Exception e) {
-            pipeline.counters().increment(NodeCounter.KAFKA_FORWARD_DROPPED);
-            OnceLog.warn("kafka-forward:" + e.getClass().getName(), "sensor " + pipeline.id()
-                    + ": a message was not forwarded to " + config.eventTopic + ": " + e, null);
+            sends.send(new ProducerRecord<>(config.eventTopic, key, envelope.toByteArray()));
         }
     }
 }

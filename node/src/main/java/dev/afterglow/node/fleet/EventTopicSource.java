@@ -75,13 +75,14 @@ public final class EventTopicSource implements ConsumerRebalanceListener, AutoCl
     private volatile long lagRecords;
     private volatile long rebalances;
 
-    EventTopicSource(KafkaConfig config, SensorRegistry registry, NodeClock clock, Counters nodeCounters) {
+    /** @param member this node's name in the group (commit metadata) */
+    EventTopicSource(KafkaConfig config, String member, SensorRegistry registry, NodeClock clock, Counters nodeCounters) {
         this.config = config;
         this.registry = registry;
         this.clock = clock;
         this.nodeCounters = nodeCounters;
-        this.member = config.member();
-        this.consumer = KafkaClients.consumer(config);
+        this.member = member;
+        this.consumer = KafkaClients.consumer(config, member);
         this.thread = new Thread(this::run, "afterglow-kafka-source");
         this.thread.setDaemon(true);
     }

@@ -24,6 +24,8 @@ import org.apache.kafka.clients.producer.KafkaProducer;
  */
 public final class Fleet implements AutoCloseable {
     private final KafkaConfig config;
+    /** This node's name in the fleet (client ids, commit metadata, frame header), resolved once. */
+    private final String member;
     private final NodeClock clock;
     private final Counters nodeCounters;
     private EventForwarder forwarder;
@@ -33,6 +35,7 @@ public final class Fleet implements AutoCloseable {
 
     private Fleet(KafkaConfig config, NodeClock clock, Counters nodeCounters) {
         this.config = config;
+        this.member = config.member();
         this.clock = clock;
         this.nodeCounters = nodeCounters;
     }
@@ -48,10 +51,10 @@ public final class Fleet implements AutoCloseable {
         if (config.producesFrames()) {
             topics.add(config.frameTopic);
         }
-        KafkaClients.checkTopics(config, topics);
+        KafkaClients.checkTopics(config, topics, f.member);
         try {
             if (config.forward) {
-                f.forwarder = new EventForwarder(config, nodeCounters);
+                f.forwarder = new EventForwarder(config, f.member);
                 f.timer = Executors.newSingleThreadScheduledExecutor(r -> {
                     Thread t = new Thread(r, "afterglow-kafka-hellos");
                     t.setDaemon(true);
@@ -61,7 +64,7 @@ public final class Fleet implements AutoCloseable {
                         config.helloRepeatMs, TimeUnit.MILLISECONDS);
             }
             if (config.producesFrames()) {
-                f.frameProducer = KafkaClients.producer(config, "frames");
+                f.frameProducer = KafkaClients.producer(config, "frames", f.member);
                 KafkaClients.awaitMetadata(f.frameProducer, config.frameTopic);
             }
         } catch (RuntimeException e) {
@@ -76,7 +79,6 @@ public final class Fleet implements AutoCloseable {
         if (frameProducer == null) {
             return (id, c) -> List.of();
         }
-        String member = config.member();
         PixelFormat format = config.frameFormat.equals("log-f32") ? PixelFormat.PIXEL_FORMAT_LOG_F32 : PixelFormat.PIXEL_FORMAT_GRAY8;
         return (id, c) -> List.<FrameSink>of(new FrameTopicSink(frameProducer, config.frameTopic, format,
                 config.frameDownscale, config.frameRateHz, clock, id, c, member));
@@ -90,7 +92,7 @@ public final class Fleet implements AutoCloseable {
     /** Joins the processing group, if configured. */
     public void start(SensorRegistry registry) {
         if (config.consume) {
-            source = new EventTopicSource(config, registry, clock, nodeCounters);
+            source = new EventTopicSource(config, member, registry, clock, nodeCounters);
             source.start();
         }
     }

@@ -7,9 +7,7 @@ import dev.afterglow.node.publish.FrameSink;
 import dev.afterglow.node.publish.Subscription;
 import dev.afterglow.node.stats.Counters;
 import dev.afterglow.node.stats.NodeCounter;
-import dev.afterglow.node.stats.OnceLog;
 import dev.afterglow.proto.v1.PixelFormat;
-import org.apache.kafka.clients.producer.Callback;
 import org.apache.kafka.clients.producer.KafkaProducer;
 import org.apache.kafka.clients.producer.ProducerRecord;
 
@@ -20,13 +18,11 @@ import org.apache.kafka.clients.producer.ProducerRecord;
  * pipeline thread: a full producer buffer or a refused record drops the frame, counted.
  */
 final class FrameTopicSink implements FrameSink {
-    private final KafkaProducer<byte[], byte[]> producer;
     private final String topic;
     private final PixelFormat format;
     private final NodeClock clock;
-    private final Counters counters;
     private final byte[] key;
-    private final Callback onSent;
+    private final CountedSend sends;
     private final byte[] member;
     private final int downscale;
     private final double rateHz;
@@ -40,19 +36,12 @@ final class FrameTopicSink implements FrameSink {
         this.downscale = downscale;
         this.rateHz = rateHz;
         this.member = member.getBytes(java.nio.charset.StandardCharsets.UTF_8);
-        this.producer = producer;
         this.topic = topic;
         this.format = format;
         this.clock = clock;
-        this.counters = counters;
         this.key = EventRecords.key(sensorId);
-        this.onSent = (metadata, e) -> {
-            if (e == null) {
-                counters.increment(NodeCounter.KAFKA_FRAMES_PRODUCED);
-            } else {
-                dropped(e);
-            }
-        };
+        this.sends = new CountedSend(producer, counters, NodeCounter.KAFKA_FRAMES_PRODUCED, NodeCounter.KAFKA_FRAMES_DROPPED,
+                "a frame of sensor " + sensorId);
     }
 
     @Override
@@ -72,17 +61,8 @@ final class FrameTopicSink implements FrameSink {
         }
         byte[] value = FrameEnvelopes.whole(frame, format, downscale, clock.wallNanos(), clock.monotonicNanos() / 1000)
                 .toByteArray();
-        try {
-            ProducerRecord<byte[], byte[]> r = new ProducerRecord<>(topic, key, value);
-            r.headers().add(EventRecords.MEMBER_HEADER, member);
-            producer.send(r, onSent);
-        } catch (RuntimeException e) {
-            dropped(e);
-        }
-    }
-
-    private void dropped(Exception e) {
-        counters.increment(NodeCounter.KAFKA_FRAMES_DROPPED);
-        OnceLog.warn("kafka-frames:" + e.getClass().getName(), "a frame was not written to " + topic + ": " + e, null);
+        ProducerRecord<byte[], byte[]> r = new ProducerRecord<>(topic, key, value);
+        r.headers().add(EventRecords.MEMBER_HEADER, member);
+        sends.send(r);
     }
 }

@@ -25,11 +25,12 @@ final class KafkaClients {
     private KafkaClients() {
     }
 
-    private static Properties base(KafkaConfig c) {
+    /** @param clientId the client's name at the broker (role and member name) */
+    private static Properties base(KafkaConfig c, String clientId) {
         Properties p = new Properties();
         p.putAll(c.clientProperties);
         p.put("bootstrap.servers", c.bootstrapServers);
-        p.put("client.id", "afterglow-" + c.member());
+        p.put("client.id", clientId);
         return p;
     }
 
@@ -37,21 +38,20 @@ final class KafkaClients {
      * A producer that never blocks its caller (an ingest or pipeline thread): a full buffer fails
      * the send at once (counted as dropped). Idempotent, so retries keep one sensor's order.
      */
-    static KafkaProducer<byte[], byte[]> producer(KafkaConfig c, String role) {
-        Properties p = base(c);
+    static KafkaProducer<byte[], byte[]> producer(KafkaConfig c, String role, String member) {
+        Properties p = base(c, "afterglow-" + role + "-" + member);
         p.putIfAbsent("linger.ms", "5"); // fewer, larger requests: the broker's cost is per request as much as per byte
         p.putIfAbsent("batch.size", String.valueOf(1 << 20));
         p.putIfAbsent("buffer.memory", String.valueOf(64L << 20));
         p.putIfAbsent("max.request.size", String.valueOf(Math.max(c.maxRecordBytes + 1024, 1 << 20)));
         p.putIfAbsent("acks", "all");
         p.put("max.block.ms", "0");
-        p.put("client.id", "afterglow-" + role + "-" + c.member());
         return new KafkaProducer<>(p, new ByteArraySerializer(), new ByteArraySerializer());
     }
 
     /** The processing group's consumer: manual commits, cooperative rebalancing, the configured session timeout. */
-    static KafkaConsumer<byte[], byte[]> consumer(KafkaConfig c) {
-        Properties p = base(c);
+    static KafkaConsumer<byte[], byte[]> consumer(KafkaConfig c, String member) {
+        Properties p = base(c, "afterglow-" + member);
         p.putIfAbsent("auto.offset.reset", "earliest");
         p.putIfAbsent("max.partition.fetch.bytes", String.valueOf(Math.max(c.maxRecordBytes + 1024, 8 << 20)));
         p.putIfAbsent("fetch.max.bytes", String.valueOf(64 << 20));
@@ -69,8 +69,8 @@ final class KafkaClients {
     }
 
     /** Checks that the broker answers within 15 s and that {@code topics} exist; throws a {@link ConfigException} naming what is wrong. */
-    static void checkTopics(KafkaConfig c, Set<String> topics) {
-        Properties p = base(c);
+    static void checkTopics(KafkaConfig c, Set<String> topics, String member) {
+        Properties p = base(c, "afterglow-admin-" + member);
         p.put("request.timeout.ms", "10000");
         p.put("default.api.timeout.ms", "15000");
         try (Admin admin = Admin.create(p)) {

@@ -64,7 +64,13 @@ final class SubscriberProbe implements AutoCloseable {
 
     SubscriberProbe(SubscriberClient client, SensorSender sender, double nodeRateHz, double subscriberRateHz, String name)
             throws IOException {
-        this(client::next, client, sender, nodeRateHz, subscriberRateHz, name);
+        this(polling(client)::next, client, sender, nodeRateHz, subscriberRateHz, name);
+    }
+
+    /** The reader wakes every 200 ms without a frame to see whether it should stop. */
+    private static SubscriberClient polling(SubscriberClient client) throws IOException {
+        client.setTimeoutMillis(200);
+        return client;
     }
 
     /**
@@ -74,9 +80,6 @@ final class SubscriberProbe implements AutoCloseable {
             String name) throws IOException {
         this.feed = feed;
         this.resource = resource;
-        if (resource instanceof SubscriberClient client) {
-            client.setTimeoutMillis(200);
-        }
         this.sender = sender;
         this.nodeRateHz = nodeRateHz;
         this.divisor = subscriberRateHz <= 0 ? 1 : Math.max(1, (long) Math.ceil(nodeRateHz / subscriberRateHz - 1e-9));

@@ -30,6 +30,7 @@ import java.util.regex.Matcher;
 import java.util.regex.Pattern;
 import org.junit.jupiter.api.Test;
 import org.junit.jupiter.api.Timeout;
+import org.junit.jupiter.api.io.TempDir;
 
 /**
  * The Grafana dashboard against a live node: the node runs on loopback with the configuration the
@@ -70,7 +71,7 @@ class DockerDashboardMetricsTest {
     }
 
     @Test
-    void everyDashboardQueryShouldUseOnlySeriesTheNodeExports() throws Exception {
+    void everyDashboardQueryShouldUseOnlySeriesTheNodeExports(@TempDir Path fleetDir) throws Exception {
         List<EventBatch> packets = SceneEvents.packets(W, H, 1_500_000, 2_000, 5);
         HttpClient http = HttpClient.newBuilder().connectTimeout(Duration.ofSeconds(5)).build();
         String udpSensor = "dock-door"; // listed in docker/node/afterglow.yaml (320x240), so it takes datagrams
@@ -104,7 +105,7 @@ class DockerDashboardMetricsTest {
             HttpResponse<String> metrics = HttpEndpointsTest.get(http, node.httpPort(), "/metrics");
             assertEquals(200, metrics.statusCode());
             // The node's series first (samples are looked up first-match), then the fleet's.
-            String text = metrics.body() + fleetMetrics(http);
+            String text = metrics.body() + fleetMetrics(http, fleetDir);
             Set<String> exported = DockerFiles.sampleNames(text);
             assertEquals(1, HttpEndpointsTest.sample(text, "afterglow_subscribers_connected"));
 
@@ -147,8 +148,7 @@ class DockerDashboardMetricsTest {
      * sensor streaming into it) and a processing-group member (its configuration), whose
      * /metrics texts carry the series of the dashboard's fleet row.
      */
-    private static String fleetMetrics(HttpClient http) throws Exception {
-        Path dir = Files.createTempDirectory("fleet-dashboard");
+    private static String fleetMetrics(HttpClient http, Path dir) throws Exception {
         try (KafkaTestBroker broker = KafkaTestBroker.start(dir);
                 Admin admin = Admin.create(Map.of("bootstrap.servers", broker.bootstrap()))) {
             NodeConfig edgeConfig = DockerFiles.fleetLoopbackConfig("edge", broker.bootstrap());

@@ -8,14 +8,11 @@ import dev.afterglow.node.AfterglowNode;
 import dev.afterglow.node.client.SensorClient;
 import dev.afterglow.node.config.NodeConfig;
 import java.io.IOException;
-import java.nio.charset.StandardCharsets;
-import java.nio.file.Files;
 import java.nio.file.Path;
 import java.util.List;
 import java.util.concurrent.TimeUnit;
 import java.util.regex.Matcher;
 import java.util.regex.Pattern;
-import org.junit.jupiter.api.Assumptions;
 import org.junit.jupiter.api.Test;
 import org.junit.jupiter.api.Timeout;
 import org.junit.jupiter.api.io.TempDir;
@@ -27,17 +24,11 @@ import org.junit.jupiter.api.io.TempDir;
  */
 @Timeout(value = 90, unit = TimeUnit.SECONDS)
 class PythonSubscriberExampleTest {
-    private static final Path PYTHON = Path.of("/usr/bin/python3");
-    private static final Path PROTOC = Path.of("/usr/bin/protoc");
-
     @Test
     void pythonExampleShouldReceiveFramesAsNumpyArrays(@TempDir Path gen) throws Exception {
-        requireTools();
-        Path root = Path.of("..").toAbsolutePath().normalize();
-        Path protoDir = root.resolve("proto/src/main/proto");
-        Path script = root.resolve("examples/python/afterglow_subscribe.py");
-        run(List.of(PROTOC.toString(), "--python_out=" + gen, "-I" + protoDir,
-                protoDir.resolve("afterglow/v1/afterglow.proto").toString()), gen, 30);
+        PythonExamples.requireTools(List.of(), "");
+        Path script = PythonExamples.script("afterglow_subscribe.py");
+        PythonExamples.generate(gen);
 
         int w = 64;
         int h = 48;
@@ -62,7 +53,7 @@ class PythonSubscriberExampleTest {
             });
             sender.setDaemon(true);
             sender.start();
-            String out = run(List.of(PYTHON.toString(), script.toString(), "--port", Integer.toString(node.subscriberPort()),
+            String out = PythonExamples.run(List.of(PythonExamples.PYTHON.toString(), script.toString(), "--port", Integer.toString(node.subscriberPort()),
                     "--sensor", "py-cam", "--rate", "10", "--format", "log-f32", "--count", "5"), gen, 60);
             Pattern line = Pattern.compile("frame seq=(\\d+) t_us=(\\d+) shape=\\((\\d+), (\\d+)\\) dtype=float32 .*");
             List<String> frames = out.lines().filter(l -> l.startsWith("frame ")).toList();
@@ -80,39 +71,5 @@ class PythonSubscriberExampleTest {
                 previousT = t;
             }
         }
-    }
-
-    static void requireTools() throws Exception {
-        boolean ci = "true".equals(System.getenv("CI"));
-        String missing = null;
-        if (!Files.isExecutable(PYTHON)) {
-            missing = PYTHON + " not found";
-        } else if (!Files.isExecutable(PROTOC)) {
-            missing = PROTOC + " not found (Debian package protobuf-compiler)";
-        } else {
-            Process p = new ProcessBuilder(PYTHON.toString(), "-c", "import numpy, google.protobuf").redirectErrorStream(true).start();
-            if (!p.waitFor(30, TimeUnit.SECONDS) || p.exitValue() != 0) {
-                missing = "python3-numpy or python3-protobuf not installed";
-            }
-        }
-        if (missing != null) {
-            if (ci) {
-                throw new AssertionError("CI must provide the Python example's tools: " + missing);
-            }
-            Assumptions.assumeTrue(false, "skipped outside CI: " + missing);
-        }
-    }
-
-    private static String run(List<String> command, Path pythonPath, int timeoutS) throws Exception {
-        ProcessBuilder pb = new ProcessBuilder(command).redirectErrorStream(true);
-        pb.environment().put("PYTHONPATH", pythonPath.toString());
-        Process p = pb.start();
-        if (!p.waitFor(timeoutS, TimeUnit.SECONDS)) {
-            p.destroyForcibly();
-            throw new AssertionError("timed out: " + command);
-        }
-        String out = new String(p.getInputStream().readAllBytes(), StandardCharsets.UTF_8);
-        assertEquals(0, p.exitValue(), command + "\n" + out);
-        return out;
     }
 }

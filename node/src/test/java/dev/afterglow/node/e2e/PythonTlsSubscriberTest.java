@@ -37,17 +37,11 @@ class PythonTlsSubscriberTest {
 
     @BeforeAll
     static void setUp() throws Exception {
-        PythonSubscriberExampleTest.requireTools();
+        PythonExamples.requireTools(List.of(), "");
         fixture = new TlsFixture(dir);
         gen = dir.resolve("gen");
         java.nio.file.Files.createDirectories(gen);
-        Path protoDir = root().resolve("proto/src/main/proto");
-        assertEquals(0, exec(List.of("/usr/bin/protoc", "--python_out=" + gen, "-I" + protoDir,
-                protoDir.resolve("afterglow/v1/afterglow.proto").toString())).exit);
-    }
-
-    private static Path root() {
-        return Path.of("..").toAbsolutePath().normalize();
+        PythonExamples.generate(gen);
     }
 
     @Test
@@ -55,7 +49,7 @@ class PythonTlsSubscriberTest {
         try (AfterglowNode node = AfterglowNode.start(fixture.config(true, ALL))) {
             feed(node, fixture.withCertificate);
             waitFor(() -> node.sensors().get("belt") != null);
-            List<String> common = List.of("/usr/bin/python3", root().resolve("examples/python/afterglow_subscribe.py").toString(),
+            List<String> common = List.of(PythonExamples.PYTHON.toString(), PythonExamples.script("afterglow_subscribe.py").toString(),
                     "--port", Integer.toString(node.subscriberPort()), "--sensor", "belt", "--rate", "10", "--count", "4",
                     "--tls-ca", fixture.pki.caCert.toString());
 

@@ -5,8 +5,8 @@ import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import dev.afterglow.node.AfterglowNode;
 import dev.afterglow.node.config.NodeConfig;
+import dev.afterglow.node.e2e.PythonExamples;
 import dev.afterglow.node.stats.NodeCounter;
-import java.nio.charset.StandardCharsets;
 import java.nio.file.Files;
 import java.nio.file.Path;
 import java.util.List;
@@ -16,7 +16,6 @@ import java.util.regex.Matcher;
 import java.util.regex.Pattern;
 import org.apache.kafka.clients.admin.Admin;
 import org.apache.kafka.clients.admin.NewTopic;
-import org.junit.jupiter.api.Assumptions;
 import org.junit.jupiter.api.Test;
 import org.junit.jupiter.api.Timeout;
 import org.junit.jupiter.api.io.TempDir;
@@ -29,18 +28,12 @@ import org.junit.jupiter.api.io.TempDir;
  */
 @Timeout(value = 120, unit = TimeUnit.SECONDS)
 class PythonFleetExampleTest {
-    private static final Path PYTHON = Path.of("/usr/bin/python3");
-    private static final Path PROTOC = Path.of("/usr/bin/protoc");
-
     @Test
     void pythonSensorFeedsTheGroupAndPythonReadsItsFrames(@TempDir Path dir) throws Exception {
-        requireTools();
-        Path root = Path.of("..").toAbsolutePath().normalize();
-        Path protoDir = root.resolve("proto/src/main/proto");
-        Path script = root.resolve("examples/python/afterglow_fleet.py");
+        PythonExamples.requireTools(List.of("confluent_kafka"), "python3-confluent-kafka");
+        Path script = PythonExamples.script("afterglow_fleet.py");
         Path gen = Files.createDirectories(dir.resolve("gen"));
-        run(List.of(PROTOC.toString(), "--python_out=" + gen, "-I" + protoDir,
-                protoDir.resolve("afterglow/v1/afterglow.proto").toString()), gen, 30);
+        PythonExamples.generate(gen);
         try (KafkaTestBroker broker = KafkaTestBroker.start(dir);
                 Admin admin = Admin.create(Map.of("bootstrap.servers", broker.bootstrap()))) {
             admin.createTopics(List.of(new NewTopic("afterglow.events", 2, (short) 1),
@@ -54,14 +47,14 @@ class PythonFleetExampleTest {
             try (AfterglowNode node = AfterglowNode.start(config)) {
                 FleetEndToEndTest.waitFor("the member owns the partitions", 30,
                         () -> node.fleet().source().partitionsOwned() == 2);
-                String sensorOut = run(List.of(PYTHON.toString(), script.toString(), "sensor", "--kafka", broker.bootstrap(),
+                String sensorOut = PythonExamples.run(List.of(PythonExamples.PYTHON.toString(), script.toString(), "sensor", "--kafka", broker.bootstrap(),
                         "--sensor", "py-cam", "--seconds", "2"), gen, 60);
                 Matcher sent = Pattern.compile("sensor py-cam: sent (\\d+) packets, (\\d+) events").matcher(sensorOut);
                 assertTrue(sent.find(), sensorOut);
                 long events = Long.parseLong(sent.group(2));
                 FleetEndToEndTest.waitFor("every event applied", 30, () -> node.sensors().get("py-cam") != null
                         && node.sensors().get("py-cam").counters().get(NodeCounter.EVENTS_RECEIVED) == events);
-                String framesOut = run(List.of(PYTHON.toString(), script.toString(), "frames", "--kafka", broker.bootstrap(),
+                String framesOut = PythonExamples.run(List.of(PythonExamples.PYTHON.toString(), script.toString(), "frames", "--kafka", broker.bootstrap(),
                         "--sensor", "py-cam", "--count", "10", "--from-start"), gen, 60);
                 List<String> frames = framesOut.lines().filter(l -> l.startsWith("frame ")).toList();
                 assertEquals(10, frames.size(), framesOut);
@@ -76,37 +69,5 @@ class PythonFleetExampleTest {
                 }
             }
         }
-    }
-
-    private static void requireTools() throws Exception {
-        String missing = null;
-        if (!Files.isExecutable(PYTHON) || !Files.isExecutable(PROTOC)) {
-            missing = "python3 or protoc not found";
-        } else {
-            Process p = new ProcessBuilder(PYTHON.toString(), "-c", "import numpy, google.protobuf, confluent_kafka")
-                    .redirectErrorStream(true).start();
-            if (!p.waitFor(30, TimeUnit.SECONDS) || p.exitValue() != 0) {
-                missing = "python3-confluent-kafka, python3-numpy or python3-protobuf not installed";
-            }
-        }
-        if (missing != null) {
-            if ("true".equals(System.getenv("CI"))) {
-                throw new AssertionError("CI must provide the Python fleet example's tools: " + missing);
-            }
-            Assumptions.assumeTrue(false, "skipped outside CI: " + missing);
-        }
-    }
-
-    private static String run(List<String> command, Path pythonPath, int timeoutS) throws Exception {
-        ProcessBuilder pb = new ProcessBuilder(command).redirectErrorStream(true);
-        pb.environment().put("PYTHONPATH", pythonPath.toString());
-        Process p = pb.start();
-        if (!p.waitFor(timeoutS, TimeUnit.SECONDS)) {
-            p.destroyForcibly();
-            throw new AssertionError("timed out: " + command);
-        }
-        String out = new String(p.getInputStream().readAllBytes(), StandardCharsets.UTF_8);
-        assertEquals(0, p.exitValue(), command + "\n" + out);
-        return out;
     }
 }

@@ -30,15 +30,18 @@ final class TopicSensor implements AutoCloseable {
     }
 
     Future<?> events(String sensorId, long sequence, EventBatch batch) {
-        return send(sensorId, Envelope.newBuilder().setSchemaVersion(Envelopes.SCHEMA_VERSION)
-                .setEvents(SensorClient.packet(sensorId, sequence, batch)).build());
+        return send(sensorId, packet(sensorId, sequence, batch));
     }
 
     /** An event packet whose record says it was made at {@code createdMs} (wall clock). */
     Future<?> eventsMadeAt(String sensorId, long sequence, EventBatch batch, long createdMs) {
-        Envelope e = Envelope.newBuilder().setSchemaVersion(Envelopes.SCHEMA_VERSION)
+        return producer.send(new ProducerRecord<>(topic, null, createdMs, EventRecords.key(sensorId),
+                packet(sensorId, sequence, batch).toByteArray()));
+    }
+
+    private static Envelope packet(String sensorId, long sequence, EventBatch batch) {
+        return Envelope.newBuilder().setSchemaVersion(Envelopes.SCHEMA_VERSION)
                 .setEvents(SensorClient.packet(sensorId, sequence, batch)).build();
-        return producer.send(new ProducerRecord<>(topic, null, createdMs, EventRecords.key(sensorId), e.toByteArray()));
     }
 
     Future<?> send(String sensorId, Envelope e) {
