@@ -348,7 +348,8 @@ public final class EventTopicSource implements ConsumerRebalanceListener, AutoCl
         List<String> unclean = new ArrayList<>();
         for (TopicPartition tp : partitions) {
             OffsetAndMetadata om = committed.get(tp);
-            Long until = om == null ? null : uncleanUntil(om.metadata());
+            Long until = om == null ? null
+                    : uncleanUntil(om.metadata(), member, config.commitIntervalMs, clock.wallNanos() / 1_000_000L);
             if (until != null) {
                 rereadUntilMs.put(tp, until);
                 unclean.add(tp.toString());
@@ -393,8 +394,14 @@ public final class EventTopicSource implements ConsumerRebalanceListener, AutoCl
         return skipped;
     }
 
-    /** From a commit's metadata: if another member committed it and did not hand over cleanly, until when it may have applied records. */
-    Long uncleanUntil(String metadata) {
+    /**
+     * From a commit's metadata (written by whoever may commit for the group: untrusted): if another
+     * member committed it and did not hand over cleanly, until when (wall ms) it may have applied
+     * records; null otherwise or if the metadata does not parse. A commit time after {@code nowMs}
+     * (a skewed clock, or a made-up number) counts as now: the dead member cannot have applied a
+     * record that arrives later, and the sum cannot overflow.
+     */
+    static Long uncleanUntil(String metadata, String self, long commitIntervalMs, long nowMs) {
         if (metadata == null || !metadata.startsWith("afterglow;")) {
             return null;
         }
@@ -414,10 +421,10 @@ public final class EventTopicSource implements ConsumerRebalanceListener, AutoCl
                 }
             }
         }
-        if (clean || owner == null || owner.equals(member) || t < 0) {
+        if (clean || owner == null || owner.equals(self) || t < 0) {
             return null;
         }
-        return t + config.commitIntervalMs + 100 + REREAD_SLACK_MS;
+        return Math.min(t, nowMs) + commitIntervalMs + 100 + REREAD_SLACK_MS;
     }
 
     private static void sleepQuietly(long ms) {
