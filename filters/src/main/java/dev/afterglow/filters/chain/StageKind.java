@@ -60,10 +60,13 @@ public enum StageKind {
             new Param("window", Unit.TIME, 10_000, 1, 1_000_000, "window dT"),
             new Param("support", Unit.INTEGER, 6, 1, PatchSupportFilter.maxSupport(PatchSupportFilter.MAX_RADIUS),
                     "weight needed from patch pixels that fired within dT; ring d weighs radius+1-d"),
-            new Param("radius", Unit.INTEGER, 2, 1, PatchSupportFilter.MAX_RADIUS, "patch radius r: (2r+1)x(2r+1) pixels"))) {
+            new Param("radius", Unit.INTEGER, 2, 1, PatchSupportFilter.MAX_RADIUS, "patch radius r: (2r+1)x(2r+1) pixels"),
+            new Param("fill", Unit.NUMBER, 0, 0, 10, "0: fixed window; otherwise the window shrinks so that the mean event "
+                    + "rate per pixel times the window stays at most this (a busy, noisy stream gets a shorter window)"))) {
         @Override
         EventStage build(StageSpec s, int w, int h) {
-            return new PatchSupportFilter(w, h, (int) s.get("window"), (int) s.get("support"), (int) s.get("radius"));
+            return new PatchSupportFilter(w, h, (int) s.get("window"), (int) s.get("support"), (int) s.get("radius"),
+                    s.get("fill"));
         }
 
         @Override
@@ -103,18 +106,20 @@ public enum StageKind {
     /** {@link KalmanFusion}: per-pixel uncertainty-weighted fusion of events and the sensor's frames. */
     KALMAN_FUSION("kalman-fusion", true, List.of(
             new Param("contrast", Unit.NUMBER, 0.2, 0.01, 2, "contrast threshold C in log units"),
-            new Param("process-noise", Unit.NUMBER, 0.03, 1e-6, 1e4, "q: how fast the scene may drift, log units squared per second"),
-            new Param("event-noise", Unit.NUMBER, 1, 0, 10, "standard deviation of one event's step, as a fraction of C"),
+            new Param("process-noise", Unit.NUMBER, 0.02, 1e-6, 1e4, "q: how fast the scene may drift, log units squared per second"),
+            new Param("event-noise", Unit.NUMBER, 0.6, 0, 10, "standard deviation of one event's step, as a fraction of C"),
             new Param("shot-gain", Unit.NUMBER, 0.5, 0, 100, "frame shot noise: variance per count of signal, in 8-bit counts"),
             new Param("read-noise", Unit.NUMBER, 2, 0, 100, "frame read noise, standard deviation in 8-bit counts"),
             new Param("saturated", Unit.NUMBER, 0.98, 0.01, 1, "fraction of full scale at and above which a frame pixel carries no measurement"),
             new Param("learn-noise", Unit.INTEGER, 1, 0, 1, "1: learn read noise and shot gain from the sensor's frames "
-                    + "(starting from the values given); 0: keep the values given"))) {
+                    + "(starting from the values given); 0: keep the values given"),
+            new Param("frame-smoothing", Unit.INTEGER, 1, 0, 8, "radius of the adaptive (local-statistics) denoising of each "
+                    + "sensor frame before it is fused; 0: off"))) {
         @Override
         EventStage build(StageSpec s, int w, int h) {
             return new KalmanFusion(w, h, s.get("contrast"), s.get("process-noise"), s.get("event-noise"),
                     new FrameNoiseModel(s.get("shot-gain"), s.get("read-noise"), s.get("saturated")),
-                    s.get("learn-noise") == 1, s.toString());
+                    s.get("learn-noise") == 1, (int) s.get("frame-smoothing"), s.toString());
         }
     },
     /**

@@ -30,7 +30,18 @@ public final class PatchSupportFilter implements EventStage {
     /** Largest patch radius accepted (7x7 patch). */
     public static final int MAX_RADIUS = 3;
 
+    /** Time constant of the mean event rate the window follows (sensor time). */
+    static final long RATE_TIME_CONSTANT_US = 250_000;
+    /** Shortest window the rate may shrink dT to. */
+    static final int MIN_ADAPTED_WINDOW_US = 1_000;
+
     private final int windowUs;
+    /** Mean events per pixel allowed within the window; 0: the window is fixed. */
+    private final double fill;
+    private final int pixels;
+    private double ratePerPixelUs;
+    private long lastBatchEndUs = Long.MIN_VALUE;
+    private int adaptedWindowUs;
     private final int support;
     private final int radius;
     private final int[] offsets;
@@ -48,6 +59,17 @@ public final class PatchSupportFilter implements EventStage {
      * @param radius patch radius r, 1 .. {@value #MAX_RADIUS} (1: the 3x3 neighbourhood)
      */
     public PatchSupportFilter(int width, int height, int windowUs, int support, int radius) {
+        this(width, height, windowUs, support, radius, 0);
+    }
+
+    /**
+     * @param fill 0: dT is fixed; otherwise dT shrinks (down to {@value #MIN_ADAPTED_WINDOW_US} us)
+     *     so that the sensor's mean event rate per pixel times dT stays at most {@code fill}, (0, 10]
+     */
+    public PatchSupportFilter(int width, int height, int windowUs, int support, int radius, double fill) {
+        if (!(fill >= 0 && fill <= 10)) {
+            throw new IllegalArgumentException("patch-support.fill=" + fill + " outside [0, 10]");
+        }
         if (windowUs < 1 || windowUs > 1_000_000) {
             throw new IllegalArgumentException("patch-support.window=" + windowUs + "us outside [1us, 1s]");
         }
@@ -60,6 +82,9 @@ public final class PatchSupportFilter implements EventStage {
                     + "] (radius " + radius + ")");
         }
         this.windowUs = windowUs;
+        this.fill = fill;
+        this.pixels = width * height;
+        this.adaptedWindowUs = windowUs;
         this.support = support;
         this.radius = radius;
         this.stride = width + 2 * radius;
@@ -109,7 +134,7 @@ public final class PatchSupportFilter implements EventStage {
         int n = batch.size;
         int st = stride;
         int r = radius;
-        int dt = windowUs;
+        int dt = fill > 0 ? adapt(batch) : windowUs;
         int k = support;
         int kept = 0;
         for (int i = 0; i < n; i++) {
@@ -134,6 +159,38 @@ public final class PatchSupportFilter implements EventStage {
         counters.record(n, kept);
     }
 
+    /**
+     * Follows the sensor's mean event rate per pixel (all events in, an exponential average over
+     * {@value #RATE_TIME_CONSTANT_US} us of sensor time) and returns dT = min(window, fill / rate).
+     * Uncorrelated events are what a long window lets through: at a mean rate λ per pixel a patch
+     * of total weight W collects about W·λ·dT of chance support, so dT shrinks as the stream gets
+     * busier (a dark, noisy sensor) and stays long when it is sparse (slow motion in good light).
+     */
+    private int adapt(EventBatch batch) {
+        int n = batch.size;
+        if (n == 0) {
+            return adaptedWindowUs;
+        }
+        long end = batch.timeBaseUs + batch.t[n - 1];
+        if (lastBatchEndUs != Long.MIN_VALUE && end > lastBatchEndUs) {
+            long span = end - lastBatchEndUs;
+            double instant = n / ((double) pixels * span);
+            double a = Math.min(1, (double) span / RATE_TIME_CONSTANT_US);
+            ratePerPixelUs += a * (instant - ratePerPixelUs);
+            double window = ratePerPixelUs > 0 ? fill / ratePerPixelUs : windowUs;
+            adaptedWindowUs = (int) Math.max(Math.min(windowUs, MIN_ADAPTED_WINDOW_US), Math.min(windowUs, window));
+        }
+        if (lastBatchEndUs == Long.MIN_VALUE || end > lastBatchEndUs) {
+            lastBatchEndUs = end;
+        }
+        return adaptedWindowUs;
+    }
+
+    /** The window dT in use: the configured one, or the one the event rate set (fill &gt; 0). */
+    public int windowUs() {
+        return adaptedWindowUs;
+    }
+
     @Override
     public StageCounters counters() {
         return counters;
@@ -141,6 +198,7 @@ public final class PatchSupportFilter implements EventStage {
 
     @Override
     public String describe() {
-        return "patch-support(window=" + windowUs + "us, support=" + support + ", radius=" + radius + ")";
+        return "patch-support(window=" + windowUs + "us, support=" + support + ", radius=" + radius
+                + (fill > 0 ? ", fill=" + fill : "") + ")";
     }
 }

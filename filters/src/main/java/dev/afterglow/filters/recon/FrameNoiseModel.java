@@ -22,10 +22,17 @@ public final class FrameNoiseModel {
     private final double saturatedFraction;
     private int tableBits;
     private double[] logOf;
+    /** ln((c + 1/2)/(M + 1)) at c = j / FINE_STEPS for c below FINE_BELOW counts. */
+    private double[] fineLogOf;
     private double[] varianceOf;
     private double[] varianceAtLog;
     private double logTableStart;
     private double logTableScale;
+
+    /** Fractional counts below which {@link #logOfCount} uses the fine table. */
+    static final int FINE_BELOW = 64;
+    /** Steps per count of the fine table. */
+    static final int FINE_STEPS = 64;
 
     /** Entries of the table of variance by expected log intensity. */
     static final int LOG_TABLE_SIZE = 2048;
@@ -104,6 +111,26 @@ public final class FrameNoiseModel {
         return varianceAtLog;
     }
 
+    /**
+     * Log intensity {@code ln((c + 1/2)/(M + 1))} of a fractional count c in [0, M] (a spatially
+     * filtered pixel), by linear interpolation in tables, no {@code log} per call: steps of 1/64
+     * count below 64 counts, whole counts above. The interpolation error is below 2e-4 log units
+     * (h²/8 times the largest |(ln)''| = 1/(c + 1/2)² on each table's range).
+     */
+    double logOfCount(double c, int bits) {
+        prepare(bits);
+        if (c < FINE_BELOW) {
+            double at = c * FINE_STEPS;
+            int j = (int) at;
+            return fineLogOf[j] + (at - j) * (fineLogOf[j + 1] - fineLogOf[j]);
+        }
+        int v = (int) c;
+        if (v >= logOf.length - 1) {
+            return logOf[logOf.length - 1];
+        }
+        return logOf[v] + (c - v) * (logOf[v + 1] - logOf[v]);
+    }
+
     /** The log table for {@code bits} (index: pixel value). */
     double[] logs(int bits) {
         prepare(bits);
@@ -137,6 +164,11 @@ public final class FrameNoiseModel {
         }
         logOf = logs;
         varianceOf = vars;
+        double[] fine = new double[FINE_BELOW * FINE_STEPS + 1];
+        for (int j = 0; j < fine.length; j++) {
+            fine[j] = Math.log(((double) j / FINE_STEPS + 0.5) / (max + 1));
+        }
+        fineLogOf = fine;
         // By expected log intensity: from half a count (the darkest a value can say) to saturation.
         double lo = logs[0];
         double hi = logs[Math.max(0, saturatedAt - 1)];

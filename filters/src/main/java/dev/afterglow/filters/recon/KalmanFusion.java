@@ -79,6 +79,10 @@ public final class KalmanFusion implements FrameFusion {
     private long latestEventUs = Long.MIN_VALUE;
     private long framesAligned;
     private final String description;
+    /** Spatial denoising of each frame before it is fused; null when off. */
+    private final LocalStatisticsFrameFilter frameFilter;
+    /** The frame's counts, for the frame filter. */
+    private final int[] counts;
     private long framesApplied;
     private long lateEvents;
 
@@ -92,6 +96,15 @@ public final class KalmanFusion implements FrameFusion {
      */
     public KalmanFusion(int width, int height, double contrast, double processNoise, double eventNoise,
             FrameNoiseModel frameNoise, boolean learnNoise, String description) {
+        this(width, height, contrast, processNoise, eventNoise, frameNoise, learnNoise, 0, description);
+    }
+
+    /**
+     * @param frameSmoothing radius of the {@link LocalStatisticsFrameFilter} applied to each frame
+     *     before it is fused, 0 (off) .. 8
+     */
+    public KalmanFusion(int width, int height, double contrast, double processNoise, double eventNoise,
+            FrameNoiseModel frameNoise, boolean learnNoise, int frameSmoothing, String description) {
         ReconstructionChecks.contrast("kalman-fusion", contrast);
         if (!(processNoise > 0 && processNoise <= 1e4)) {
             throw new IllegalArgumentException("kalman-fusion.process-noise=" + processNoise + " outside (0, 1e4]");
@@ -114,6 +127,8 @@ public final class KalmanFusion implements FrameFusion {
         this.exposureShare = new float[n];
         this.noiseEstimator = learnNoise ? new FrameNoiseEstimator(n, frameNoise.readNoise8(), frameNoise.shotGain8()) : null;
         this.changedSinceFrame = learnNoise ? new byte[n] : null;
+        this.frameFilter = frameSmoothing == 0 ? null : new LocalStatisticsFrameFilter(width, height, frameSmoothing);
+        this.counts = frameSmoothing == 0 ? null : new int[n];
         java.util.Arrays.fill(variance, UNKNOWN_VARIANCE);
         java.util.Arrays.fill(updatedUs, Long.MIN_VALUE);
     }
@@ -279,15 +294,38 @@ public final class KalmanFusion implements FrameFusion {
         double floorLog = zs[saturatedAt - 1];
         double[] byLog = frameNoise.variancesAtLog(bitDepth);
         double floorVariance = rs[saturatedAt - 1];
+        LocalStatisticsFrameFilter smoothing = frameFilter;
+        double[] smoothed = null;
+        float[] factor = null;
+        if (smoothing != null) {
+            int[] cs = counts;
+            for (int i = 0; i < n; i++) {
+                cs[i] = bytesPer == 1 ? in.get(at + i) & 0xFF : Math.min(max, in.getShort(at + 2 * i) & 0xFFFF);
+            }
+            double scale = max / 255.0;
+            double read = frameNoise.readNoise8() * scale;
+            smoothing.apply(cs, saturatedAt, frameNoise.shotGain8() * scale, read * read + 1.0 / 12);
+            smoothed = smoothing.filtered();
+            factor = smoothing.varianceFactor();
+        }
         for (int i = 0; i < n; i++) {
-            int v = bytesPer == 1 ? in.get(at + i) & 0xFF : Math.min(max, in.getShort(at + 2 * i) & 0xFFFF);
+            int v = smoothing != null ? counts[i]
+                    : bytesPer == 1 ? in.get(at + i) & 0xFF : Math.min(max, in.getShort(at + 2 * i) & 0xFFFF);
             long before = last[i];
             if (before != Long.MIN_VALUE && timeUs > before) {
                 p[i] += q * (timeUs - before);
             }
             double seen = againstExposure ? start[i] + share[i] : x[i];
-            double z = zs[v];
-            double r = p[i] >= UNKNOWN_VARIANCE ? rs[v] : byLog[frameNoise.logTableIndex(seen)];
+            double z;
+            double r;
+            if (smoothed != null && factor[i] < 1) {
+                z = frameNoise.logOfCount(smoothed[i], bitDepth);
+                r = p[i] >= UNKNOWN_VARIANCE ? rs[v] : byLog[frameNoise.logTableIndex(seen)];
+                r *= factor[i];
+            } else {
+                z = zs[v];
+                r = p[i] >= UNKNOWN_VARIANCE ? rs[v] : byLog[frameNoise.logTableIndex(seen)];
+            }
             if (v >= saturatedAt) {
                 // Censored: the pixel is at least as bright as saturation, no more is known. An
                 // estimate already there is left alone; one below is pulled up to the floor.

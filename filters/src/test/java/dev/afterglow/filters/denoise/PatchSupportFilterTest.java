@@ -25,7 +25,8 @@ class PatchSupportFilterTest {
     static final class NaivePatchSupport {
         private final int width;
         private final int height;
-        private final long windowUs;
+        /** The window; the adaptive test sets it to the fast filter's before each batch. */
+        long windowUs;
         private final int support;
         private final int radius;
         private final long[] latest;
@@ -167,8 +168,52 @@ class PatchSupportFilterTest {
         }
     }
 
+    @ParameterizedTest(name = "seed {0} fill {1}")
+    @CsvSource({"31, 0.05", "32, 0.3", "33, 0.8"})
+    void shouldPassExactlyWhatTheNaiveFilterPassesWithTheWindowTheRateSet(long seed, double fill) {
+        // The rate-scaled window changes between batches only: within a batch the stage is the
+        // fixed-window filter with the window in force, so the naive filter given that window must agree.
+        RandomEventStream s = RandomEventStream.builder(32, 24, seed).disorder(0.02, 30).build();
+        PatchSupportFilter fast = new PatchSupportFilter(32, 24, 50_000, 6, 2, fill);
+        NaivePatchSupport naive = new NaivePatchSupport(32, 24, 50_000, 6, 2);
+        java.util.Set<Integer> windows = new java.util.HashSet<>();
+        EventLog[] r = StageAgainstReference.run(s, fast, (x, y, t) -> {
+            naive.windowUs = fast.windowUs();
+            windows.add(fast.windowUs());
+            return naive.pass(x, y, t);
+        });
+        EventLog.assertSameEvents(r[0], r[1], "fill " + fill);
+        assertTrue(windows.size() > 3, "the window followed the rate: " + windows.size() + " different windows");
+    }
+
+    @ParameterizedTest(name = "{0} Hz per pixel")
+    @CsvSource({"20, 7500", "5, 24000", "0.5, 24000", "500, 1000"})
+    void shouldSetTheWindowToFillOverTheMeanRatePerPixel(double hz, int expectedUs) {
+        // Uniform Poisson noise at a known rate per pixel: after a few time constants the window is
+        // fill / rate (0.15 / 20 Hz = 7.5 ms), capped by the configured 24 ms and floored at 1 ms.
+        int w = 64;
+        int h = 48;
+        PatchSupportFilter f = new PatchSupportFilter(w, h, 24_000, 6, 2, 0.15);
+        java.util.SplittableRandom random = new java.util.SplittableRandom(5);
+        EventBatch b = new EventBatch(1 << 16);
+        double perBatch = hz * w * h * 1e-3; // events per 1 ms batch
+        for (long ms = 0; ms < 2_000; ms++) {
+            b.reset(ms * 1000);
+            // Poisson count by summing exponential gaps over the batch's millisecond.
+            double at = -Math.log(1 - random.nextDouble()) / perBatch;
+            while (at < 1) {
+                b.add(random.nextInt(w), random.nextInt(h), ms * 1000 + (long) (at * 1000), 1);
+                at += -Math.log(1 - random.nextDouble()) / perBatch;
+            }
+            f.process(b);
+        }
+        assertEquals(expectedUs, f.windowUs(), expectedUs * 0.08, hz + " Hz per pixel");
+        assertTrue(f.describe().contains("fill=0.15"), f.describe());
+    }
+
     @Test
     void shouldRefuseParametersOutsideTheirLimitsNamingThem() {
+        assertMessage(() -> new PatchSupportFilter(8, 8, 1000, 3, 2, -1), "patch-support.fill=-1.0");
         assertMessage(() -> new PatchSupportFilter(8, 8, 0, 3, 2), "patch-support.window=0us");
         assertMessage(() -> new PatchSupportFilter(8, 8, 1_000_001, 3, 2), "patch-support.window=1000001us");
         assertMessage(() -> new PatchSupportFilter(8, 8, 1000, 3, 0), "patch-support.radius=0");

@@ -81,7 +81,7 @@ class DenoiseRocTest {
         for (DenoiseRoc.Family f : families) {
             assertEquals(DenoiseRoc.WINDOWS.size(), f.candidates().size());
         }
-        assertEquals("patch-support(window=1500us, support=6, radius=2)",
+        assertEquals("patch-support(window=1500us, support=6, radius=2, fill=0)",
                 families.get(3).candidates().get(6).description());
         assertThrows(IllegalArgumentException.class, () -> DenoiseRoc.Family.ofChain("x", "window", List.of("1ms"),
                 v -> "refractory(period=" + v + ") | background-activity"));

@@ -9,6 +9,21 @@ class FrameNoiseModelTest {
     // quantisation); delta method for the log: Var ln(v + 1/2) ≈ Var v / (μ + 1/2)².
 
     @Test
+    void shouldGiveTheLogOfAFractionalCountWithinTwoTenThousandthsOfMathLog() {
+        FrameNoiseModel m = new FrameNoiseModel(0.5, 2, 0.98);
+        for (int bits : new int[] {8, 10, 16}) {
+            int max = (1 << bits) - 1;
+            java.util.SplittableRandom random = new java.util.SplittableRandom(bits);
+            for (int k = 0; k < 100_000; k++) {
+                double c = k < 50_000 ? random.nextDouble() * 70 : random.nextDouble() * max;
+                double want = Math.log((c + 0.5) / (max + 1));
+                assertEquals(want, m.logOfCount(c, bits), 2e-4, bits + " bits, count " + c);
+            }
+            assertEquals(Math.log((max + 0.5) / (max + 1)), m.logOfCount(max, bits), 1e-12, "full scale");
+        }
+    }
+
+    @Test
     void shouldGiveTheLinearCameraModelsVarianceOfEachValueInLogUnits() {
         FrameNoiseModel m = new FrameNoiseModel(0.5, 2, 0.98);
         for (int v : new int[] {0, 1, 5, 60, 200, 249}) {
