@@ -31,6 +31,8 @@ final class LocalStatisticsFrameFilter {
     private final int[] colSaturated;
     private final double[] filtered;
     private final float[] factor;
+    /** 1 / (columns of the window at x), the window clipped at the borders. */
+    private final double[] inverseColumns;
 
     /** @param radius window radius r, 1 .. 8 */
     LocalStatisticsFrameFilter(int width, int height, int radius) {
@@ -49,6 +51,10 @@ final class LocalStatisticsFrameFilter {
         colSaturated = new int[width];
         filtered = new double[n];
         factor = new float[n];
+        inverseColumns = new double[width];
+        for (int x = 0; x < width; x++) {
+            inverseColumns[x] = 1.0 / (Math.min(x + radius, width - 1) - Math.max(x - radius, 0) + 1);
+        }
     }
 
     /**
@@ -111,24 +117,31 @@ final class LocalStatisticsFrameFilter {
             if (y - r - 1 >= 0) {
                 addRow((y - r - 1) * w, -1);
             }
-            int rows = Math.min(y + r, h - 1) - Math.max(y - r, 0) + 1;
+            double inverseRows = 1.0 / (Math.min(y + r, h - 1) - Math.max(y - r, 0) + 1);
+            double[] inverseCols = inverseColumns;
+            double[] out = filtered;
+            float[] weight = factor;
             int row = y * w;
             for (int x = 0; x < w; x++) {
                 int i = row + x;
                 int c = counts[i];
                 if (colSat[x] > 0) {
-                    filtered[i] = c;
-                    factor[i] = 1;
+                    out[i] = c;
+                    weight[i] = 1;
                     continue;
                 }
-                int cols = Math.min(x + r, w - 1) - Math.max(x - r, 0) + 1;
-                double count = (double) rows * cols;
-                double mean = colS[x] / count;
-                double local = Math.max(0, colSq[x] / count - mean * mean);
+                double inverseCount = inverseRows * inverseCols[x];
+                double mean = colS[x] * inverseCount;
+                double local = colSq[x] * inverseCount - mean * mean;
                 double noise = shotGain * mean + readVariance;
-                double k = local > noise ? (local - noise) / local : 0;
-                filtered[i] = mean + k * (c - mean);
-                factor[i] = (float) Math.max(k, 1 / count);
+                if (local > noise) {
+                    double k = (local - noise) / local;
+                    out[i] = mean + k * (c - mean);
+                    weight[i] = (float) Math.max(k, inverseCount);
+                } else {
+                    out[i] = mean;
+                    weight[i] = (float) inverseCount;
+                }
             }
         }
     }
