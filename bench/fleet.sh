@@ -13,7 +13,7 @@
 # Environment: FLEET_RATES ["2.5M"] events/s per sensor; FLEET_SENSORS [4]; FLEET_STEP_SECONDS [10];
 #   FLEET_PARTITIONS [4]; FLEET_WIDTH/FLEET_HEIGHT [640/480]; FLEET_FRAME_RATE [25] frames/s per sensor
 #   on the frame topic (the nodes read out at 100 Hz); FLEET_PIPELINE_THREADS [1] per node;
-#   FLEET_PACKET_US [1000] sensor time per packet (one record each); BENCH_MVN_FLAGS (e.g. -o). The first step also warms the JVMs up: give it a low rate.
+#   FLEET_PACKET_US [1000] sensor time per packet (one record each); FLEET_BUDGET_MS [50] the nodes' latency budget; BENCH_MVN_FLAGS (e.g. -o). The first step also warms the JVMs up: give it a low rate.
 set -euo pipefail
 repo="$(cd "$(dirname "$0")/.." && pwd)"
 out="${1:-$repo/bench-results/fleet-$(date +%Y%m%d-%H%M%S)}"
@@ -27,6 +27,7 @@ width="${FLEET_WIDTH:-640}"
 frame_rate="${FLEET_FRAME_RATE:-25}"
 pipeline_threads="${FLEET_PIPELINE_THREADS:-1}"
 packet_us="${FLEET_PACKET_US:-1000}"
+budget_ms="${FLEET_BUDGET_MS:-50}"
 height="${FLEET_HEIGHT:-480}"
 cd "$repo"
 
@@ -53,7 +54,7 @@ node_config() { # name http-port
   cat > "$out/$1.yaml" <<YAML
 listen: {address: 127.0.0.1, ingest-tcp-port: -1, ingest-udp-port: -1, subscriber-port: -1, http-port: $2}
 limits: {max-events-per-packet: 65536, pipeline-threads: $pipeline_threads}
-sensor-defaults: {frame-rate-hz: 100, latency-budget-ms: 50,
+sensor-defaults: {frame-rate-hz: 100, latency-budget-ms: $budget_ms,
   chain: "refractory(period=100us) | background-activity(window=5ms) | high-pass(cutoff=3rad/s, contrast=0.2)"}
 kafka:
   bootstrap-servers: "127.0.0.1:$kport"
