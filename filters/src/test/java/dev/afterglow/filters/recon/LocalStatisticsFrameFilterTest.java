@@ -54,27 +54,30 @@ class LocalStatisticsFrameFilterTest {
     @Test
     void shouldMatchTheNaiveReferenceOnSeededFrames() {
         SplittableRandom random = new SplittableRandom(42);
-        for (int radius = 1; radius <= 3; radius++) {
-            int w = 37;
-            int h = 23;
-            int[] counts = new int[w * h];
-            for (int i = 0; i < counts.length; i++) {
-                // Texture in the left half, a flat noisy patch in the right, a few saturated pixels.
-                int x = i % w;
-                double base = x < w / 2 ? 40 + 30 * Math.sin(i * 0.7) : 20;
-                counts[i] = (int) Math.max(0, Math.min(255, base + 3 * random.nextGaussian()));
-                if (random.nextInt(200) == 0) {
-                    counts[i] = 255;
+        int[][] sizes = {{37, 23}, {3, 2}, {5, 9}, {1, 6}, {8, 1}};
+        for (int[] size : sizes) {
+            for (int radius = 1; radius <= 3; radius++) {
+                int w = size[0];
+                int h = size[1];
+                int[] counts = new int[w * h];
+                for (int i = 0; i < counts.length; i++) {
+                    // Texture in the left half, a flat noisy patch in the right, a few saturated pixels.
+                    int x = i % w;
+                    double base = x < w / 2 ? 40 + 30 * Math.sin(i * 0.7) : 20;
+                    counts[i] = (int) Math.max(0, Math.min(255, base + 3 * random.nextGaussian()));
+                    if (random.nextInt(200) == 0) {
+                        counts[i] = 255;
+                    }
                 }
-            }
-            LocalStatisticsFrameFilter f = new LocalStatisticsFrameFilter(w, h, radius);
-            f.apply(counts, 250, 0.5, 4 + 1.0 / 12);
-            double[] y = new double[w * h];
-            double[] factor = new double[w * h];
-            reference(counts, w, h, radius, 250, 0.5, 4 + 1.0 / 12, y, factor);
-            for (int i = 0; i < y.length; i++) {
-                assertEquals(y[i], f.filtered()[i], 1e-9, "radius " + radius + " pixel " + i);
-                assertEquals(factor[i], f.varianceFactor()[i], 1e-6, "radius " + radius + " pixel " + i);
+                LocalStatisticsFrameFilter f = new LocalStatisticsFrameFilter(w, h, radius);
+                f.apply(counts, 250, 0.5, 4 + 1.0 / 12);
+                double[] y = new double[w * h];
+                double[] factor = new double[w * h];
+                reference(counts, w, h, radius, 250, 0.5, 4 + 1.0 / 12, y, factor);
+                for (int i = 0; i < y.length; i++) {
+                    assertEquals(y[i], f.filtered()[i], 1e-9, w + "x" + h + " radius " + radius + " pixel " + i);
+                    assertEquals(factor[i], f.varianceFactor()[i], 1e-6, "radius " + radius + " pixel " + i);
+                }
             }
         }
     }
