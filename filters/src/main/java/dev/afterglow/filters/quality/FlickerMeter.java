@@ -19,6 +19,7 @@ public final class FlickerMeter {
     private final float[][] previousFitted;
     private final boolean[] havePrevious;
     private boolean haveTruth;
+    private boolean havePreviousTruth;
 
     /** Buffers for {@code methods} methods on images of {@code pixels} pixels. */
     public FlickerMeter(int pixels, int methods) {
@@ -33,9 +34,21 @@ public final class FlickerMeter {
     public void truth(float[] truthLog) {
         if (haveTruth) {
             System.arraycopy(currentTruth, 0, previousTruth, 0, pixels);
+            havePreviousTruth = true;
         }
         System.arraycopy(truthLog, 0, currentTruth, 0, pixels);
         haveTruth = true;
+    }
+
+    /**
+     * Marks in {@code out} (1, else 0) the pixels whose true log intensity changed by more than
+     * {@code threshold} since the previous evaluation: where the scene moved. All 0 at the first
+     * evaluation.
+     */
+    public void moving(double threshold, byte[] out) {
+        for (int i = 0; i < pixels; i++) {
+            out[i] = (byte) (havePreviousTruth && Math.abs(currentTruth[i] - previousTruth[i]) > threshold ? 1 : 0);
+        }
     }
 
     /**

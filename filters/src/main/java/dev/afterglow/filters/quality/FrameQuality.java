@@ -9,6 +9,8 @@ package dev.afterglow.filters.quality;
  *     peak 1)
  * @param ssim mean SSIM (Wang et al. 2004) on the same display range, data range 1
  * @param maeLog mean absolute error of the fitted reconstruction in natural-log units
+ * @param movingSsim mean of the SSIM map over the region where the scene moved (see
+ *     {@link ImageQuality#evaluate(float[], float[], byte[])}), NaN when none was given or it was empty
  */
-public record FrameQuality(AffineFit fit, double psnrDb, double ssim, double maeLog) {
+public record FrameQuality(AffineFit fit, double psnrDb, double ssim, double maeLog, double movingSsim) {
 }

@@ -34,6 +34,15 @@ public final class ImageQuality {
 
     /** Scores {@code reconLog} against {@code truthLog} (both row-major, width x height). */
     public FrameQuality evaluate(float[] truthLog, float[] reconLog) {
+        return evaluate(truthLog, reconLog, null);
+    }
+
+    /**
+     * Scores {@code reconLog} against {@code truthLog} and also gives the mean of the SSIM map over
+     * the pixels where {@code moving} is not 0 (the same fit and display range as the whole
+     * image), or NaN when {@code moving} is null or marks no pixel away from the border.
+     */
+    public FrameQuality evaluate(float[] truthLog, float[] reconLog, byte[] moving) {
         int n = pixels;
         AffineFit fit = AffineFit.fit(reconLog, truthLog, n);
         float min = Float.POSITIVE_INFINITY;
@@ -61,8 +70,8 @@ public final class ImageQuality {
         }
         double mse = sqErr / n;
         double psnr = mse > 0 ? 10 * Math.log10(1.0 / mse) : Double.POSITIVE_INFINITY;
-        double s = ssim.mean(fittedDisplay, truthDisplay, 1.0);
-        return new FrameQuality(fit, psnr, s, absErr / n);
+        double s = ssim.mean(fittedDisplay, truthDisplay, 1.0, moving);
+        return new FrameQuality(fit, psnr, s, absErr / n, moving == null ? Double.NaN : ssim.lastMaskedMean());
     }
 
     /** The truth of the last call on the display range [0, 1]. */

@@ -36,6 +36,12 @@ import java.util.Locale;
 public final class QualityRun {
     /** Length of one processing slice of sensor time. */
     public static final long SLICE_US = 1_000;
+    /**
+     * Change of the true log intensity between two evaluations (natural-log units) above which a
+     * pixel is in the moving region: half the usual contrast threshold (common practice: a change a
+     * sensor would report).
+     */
+    public static final double MOVING_LOG = 0.1;
 
     /**
      * One chain to assess, or the flat baseline.
@@ -244,6 +250,7 @@ public final class QualityRun {
         ToneMapper toneMapper = new ToneMapper(ToneMap.DEFAULT);
         ImageQuality quality = new ImageQuality(w, h);
         FlickerMeter flicker = new FlickerMeter(n, m);
+        byte[] moving = new byte[n];
         long[] snapshots = s.snapshotTimesUs().clone();
         java.util.Arrays.sort(snapshots);
         int nextSnapshot = 0;
@@ -289,6 +296,7 @@ public final class QualityRun {
                 FrameQuality[] scores = snap ? new FrameQuality[m] : null;
                 float[] truthDisplay = null;
                 flicker.truth(truth);
+                flicker.moving(MOVING_LOG, moving);
                 for (int k = 0; k < m; k++) {
                     long r0 = System.nanoTime();
                     if (chains[k] != null) {
@@ -299,7 +307,7 @@ public final class QualityRun {
                     toneMapper.apply(recon, n, gray);
                     results[k].recordReadout(System.nanoTime() - r0);
                     long q0 = System.nanoTime();
-                    FrameQuality q = quality.evaluate(truth, recon);
+                    FrameQuality q = quality.evaluate(truth, recon, moving);
                     scoringNs += System.nanoTime() - q0;
                     results[k].record(t, q, flicker.measure(k, recon, q.fit()), t >= s.warmupUs());
                     observer.evaluated(t, k, q);
@@ -348,6 +356,8 @@ public final class QualityRun {
         private double maeSum;
         private double flickerSum;
         private int flickerCount;
+        private double movingSsimSum;
+        private int movingCount;
         private double lastSsim = Double.NaN;
 
         MethodResult(String label, ChainSpec chain) {
@@ -399,6 +409,8 @@ public final class QualityRun {
             maeSum += other.maeSum;
             flickerSum += other.flickerSum;
             flickerCount += other.flickerCount;
+            movingSsimSum += other.movingSsimSum;
+            movingCount += other.movingCount;
             lastSsim = other.lastSsim;
         }
 
@@ -418,6 +430,10 @@ public final class QualityRun {
                 if (!Double.isNaN(flicker)) {
                     flickerSum += flicker;
                     flickerCount++;
+                }
+                if (!Double.isNaN(q.movingSsim())) {
+                    movingSsimSum += q.movingSsim();
+                    movingCount++;
                 }
             }
         }
@@ -453,6 +469,15 @@ public final class QualityRun {
          */
         public double meanFlickerLog() {
             return flickerCount > 0 ? flickerSum / flickerCount : Double.NaN;
+        }
+
+        /**
+         * Mean over the averaged evaluations of the SSIM map's mean where the true log image changed
+         * by more than {@link #MOVING_LOG} since the previous evaluation (the moving region); NaN if
+         * nothing moved.
+         */
+        public double meanMovingSsim() {
+            return movingCount > 0 ? movingSsimSum / movingCount : Double.NaN;
         }
 
         /** SSIM at the last evaluation. */

@@ -40,6 +40,7 @@ public final class Ssim {
     private final double[] hxx;
     private final double[] hyy;
     private final double[] hxy;
+    private double lastMaskedMean = Double.NaN;
 
     /**
      * @param width image width, at least 11
@@ -74,15 +75,32 @@ public final class Ssim {
 
     /** Mean SSIM of two images given as doubles, row-major. */
     public double mean(double[] a, double[] b, double dataRange) {
-        return compute(a, null, b, null, dataRange);
+        return compute(a, null, b, null, dataRange, null);
     }
 
     /** Mean SSIM of two images given as floats, row-major (computed in double). */
     public double mean(float[] a, float[] b, double dataRange) {
-        return compute(null, a, null, b, dataRange);
+        return compute(null, a, null, b, dataRange, null);
     }
 
-    private double compute(double[] ad, float[] af, double[] bd, float[] bf, double dataRange) {
+    /**
+     * Mean SSIM of two float images over the whole image, as {@link #mean(float[], float[], double)},
+     * and in the same pass the mean of the SSIM map over the pixels where {@code mask} is not 0
+     * (among those at least 5 from every border), read with {@link #lastMaskedMean()}.
+     */
+    public double mean(float[] a, float[] b, double dataRange, byte[] mask) {
+        return compute(null, a, null, b, dataRange, mask);
+    }
+
+    /**
+     * The mean of the SSIM map over the masked pixels of the last call with a mask; NaN when the
+     * mask held no pixel away from the border, or the last call had no mask.
+     */
+    public double lastMaskedMean() {
+        return lastMaskedMean;
+    }
+
+    private double compute(double[] ad, float[] af, double[] bd, float[] bf, double dataRange, byte[] mask) {
         if (!(dataRange > 0)) {
             throw new IllegalArgumentException("data range " + dataRange + " must be > 0");
         }
@@ -121,6 +139,8 @@ public final class Ssim {
         double c1 = (K1 * dataRange) * (K1 * dataRange);
         double c2 = (K2 * dataRange) * (K2 * dataRange);
         double total = 0;
+        double maskedTotal = 0;
+        long masked = 0;
         for (int y = RADIUS; y < h - RADIUS; y++) {
             for (int x = 0; x < iw; x++) {
                 double ux = 0;
@@ -140,9 +160,15 @@ public final class Ssim {
                 double vx = uxx - ux * ux;
                 double vy = uyy - uy * uy;
                 double vxy = uxy - ux * uy;
-                total += (2 * ux * uy + c1) * (2 * vxy + c2) / ((ux * ux + uy * uy + c1) * (vx + vy + c2));
+                double local = (2 * ux * uy + c1) * (2 * vxy + c2) / ((ux * ux + uy * uy + c1) * (vx + vy + c2));
+                total += local;
+                if (mask != null && mask[y * w + x + RADIUS] != 0) {
+                    maskedTotal += local;
+                    masked++;
+                }
             }
         }
+        lastMaskedMean = masked > 0 ? maskedTotal / masked : Double.NaN;
         return total / ((double) iw * (h - 2 * RADIUS));
     }
 }

@@ -35,4 +35,19 @@ class FlickerMeterTest {
         meter.truth(new float[] {1, 1});
         assertTrue(Double.isNaN(meter.measure(0, new float[] {0, 0}, new AffineFit(1, 0))));
     }
+
+    @Test
+    void marksThePixelsThatChangedMoreThanTheThresholdAsMoving() {
+        FlickerMeter meter = new FlickerMeter(4, 1);
+        byte[] moving = new byte[4];
+        meter.truth(new float[] {0, 1, 2, 3});
+        meter.moving(0.1, moving);
+        assertEquals(0, moving[0] + moving[1] + moving[2] + moving[3], "nothing moved before a second evaluation");
+        meter.truth(new float[] {0.05f, 1.2f, 2, 2.5f});
+        meter.moving(0.1, moving);
+        assertEquals(0, moving[0], "0.05 is below the threshold");
+        assertEquals(1, moving[1]);
+        assertEquals(0, moving[2]);
+        assertEquals(1, moving[3], "a fall counts as much as a rise");
+    }
 }

@@ -70,7 +70,39 @@ class SsimTest {
         assertTrue(e.getMessage().contains("11x11"), e.getMessage());
     }
 
+    @Test
+    void shouldAverageTheMapOverTheMaskedPixelsOnly() {
+        // The masked mean is the naive per-pixel SSIM map averaged over the masked pixels away from
+        // the border; the whole-image mean of the same call is unchanged by the mask.
+        SplittableRandom random = new SplittableRandom(9);
+        int w = 31;
+        int h = 19;
+        double[] a = new double[w * h];
+        double[] b = new double[w * h];
+        float[] af = new float[w * h];
+        float[] bf = new float[w * h];
+        byte[] mask = new byte[w * h];
+        for (int i = 0; i < a.length; i++) {
+            af[i] = (float) random.nextDouble();
+            bf[i] = (float) (0.7 * af[i] + 0.3 * random.nextDouble());
+            a[i] = af[i];
+            b[i] = bf[i];
+            mask[i] = (byte) (i % w > 12 && i / w > 3 && random.nextInt(3) > 0 ? 1 : 0);
+        }
+        Ssim ssim = new Ssim(w, h);
+        double whole = ssim.mean(af, bf, 1.0, mask);
+        assertEquals(naive(a, b, w, h, 1.0), whole, 1e-12);
+        assertEquals(naive(a, b, w, h, 1.0, mask), ssim.lastMaskedMean(), 1e-12);
+        Ssim empty = new Ssim(w, h);
+        empty.mean(af, bf, 1.0, new byte[w * h]);
+        assertTrue(Double.isNaN(empty.lastMaskedMean()), "an empty mask has no mean");
+    }
+
     private static double naive(double[] a, double[] b, int w, int h, double range) {
+        return naive(a, b, w, h, range, null);
+    }
+
+    private static double naive(double[] a, double[] b, int w, int h, double range, byte[] mask) {
         int r = 5;
         double[][] win = new double[2 * r + 1][2 * r + 1];
         double sum = 0;
@@ -108,8 +140,10 @@ class SsimTest {
                         cxy += g * da * db;
                     }
                 }
-                total += (2 * mx * my + c1) * (2 * cxy + c2) / ((mx * mx + my * my + c1) * (vx + vy + c2));
-                count++;
+                if (mask == null || mask[y * w + x] != 0) {
+                    total += (2 * mx * my + c1) * (2 * cxy + c2) / ((mx * mx + my * my + c1) * (vx + vy + c2));
+                    count++;
+                }
             }
         }
         return total / count;

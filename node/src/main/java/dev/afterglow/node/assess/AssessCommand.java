@@ -128,7 +128,7 @@ public final class AssessCommand implements Callable<Integer> {
         QualityRun.Report report = null;
         List<double[]> perSeedSsim = new ArrayList<>();
         try (BufferedWriter w = Files.newBufferedWriter(csv, StandardCharsets.UTF_8)) {
-            w.write("seed,time_s,method,ssim,psnr_db,mae_log,fit_scale,fit_offset,chain\n");
+            w.write("seed,time_s,method,ssim,moving_ssim,psnr_db,mae_log,fit_scale,fit_offset,chain\n");
             for (int si = 0; si < seedList.length; si++) {
                 long seed = seedList[si];
                 boolean pictures = si == 0;
@@ -139,8 +139,8 @@ public final class AssessCommand implements Callable<Integer> {
                     @Override
                     public void evaluated(long timeUs, int method, FrameQuality q) {
                         try {
-                            w.write(String.format(Locale.ROOT, "%d,%.3f,%s,%.6f,%.4f,%.6f,%.6g,%.6g,\"%s\"%n", seed,
-                                    timeUs * 1e-6, methods.get(method).label(), q.ssim(), q.psnrDb(), q.maeLog(),
+                            w.write(String.format(Locale.ROOT, "%d,%.3f,%s,%.6f,%.6f,%.4f,%.6f,%.6g,%.6g,\"%s\"%n", seed,
+                                    timeUs * 1e-6, methods.get(method).label(), q.ssim(), q.movingSsim(), q.psnrDb(), q.maeLog(),
                                     q.fit().scale(), q.fit().offset(), methods.get(method).describe()));
                         } catch (IOException e) {
                             throw new java.io.UncheckedIOException(e);
@@ -196,16 +196,18 @@ public final class AssessCommand implements Callable<Integer> {
                         + "PSNR and SSIM on the truth's min..max mapped to [0, 1], MAE in log units; mean of %d evaluations "
                         + "at %s Hz from t=%.1f s.%n",
                 first.averagedEvaluations(), fmt(1e6 / intervalUs), warmupS);
-        log.printf(Locale.ROOT, "%-18s %7s %8s %8s %8s %8s %8s %8s %9s %15s%n", "method", "SSIM", "PSNR dB", "MAE log",
-                "flicker", "signal", "BA", "hot px", "M ev/s", "readout ms");
-        log.printf(Locale.ROOT, "%-18s %7s %8s %8s %8s %8s %8s %8s %9s %15s%n", "", "", "", "", "log", "kept", "removed",
-                "removed", "processed", "mean / max");
+        log.printf(Locale.ROOT, "%-18s %7s %7s %8s %8s %8s %8s %8s %8s %9s %15s%n", "method", "SSIM", "moving", "PSNR dB",
+                "MAE log", "flicker", "signal", "BA", "hot px", "M ev/s", "readout ms");
+        log.printf(Locale.ROOT, "%-18s %7s %7s %8s %8s %8s %8s %8s %8s %9s %15s%n", "", "", "SSIM", "", "", "log", "kept",
+                "removed", "removed", "processed", "mean / max");
         for (MethodResult r : report.methods()) {
-            log.printf(Locale.ROOT, "%-18s %7.4f %8.2f %8.4f %8.4f %7.1f%% %7.1f%% %7.1f%% %9.1f %7.2f / %5.2f%n", r.label(),
-                    r.meanSsim(), r.meanPsnrDb(), r.meanMaeLog(), r.meanFlickerLog(), 100 * r.keptFraction(EventLabel.SIGNAL),
+            log.printf(Locale.ROOT, "%-18s %7.4f %7.4f %8.2f %8.4f %8.4f %7.1f%% %7.1f%% %7.1f%% %9.1f %7.2f / %5.2f%n", r.label(),
+                    r.meanSsim(), r.meanMovingSsim(), r.meanPsnrDb(), r.meanMaeLog(), r.meanFlickerLog(), 100 * r.keptFraction(EventLabel.SIGNAL),
                     percentRemoved(r, EventLabel.BACKGROUND), percentRemoved(r, EventLabel.HOT_PIXEL),
                     r.eventsPerSecond() / 1e6, r.meanReadoutMs(), r.maxReadoutMs());
         }
+        log.println("moving SSIM = the SSIM map's mean over the pixels whose true log intensity changed by more than "
+                + QualityRun.MOVING_LOG + " since the previous evaluation (the same fit; NaN if nothing moved).");
         log.println("flicker = mean absolute change of the fitted log image between consecutive evaluations where the "
                 + "true log image changed by less than " + FlickerMeter.STATIC_LOG + "; readout = reconstruction read out "
                 + "at the frame time plus the 8-bit tone map; M ev/s = events through the chain per second of this thread's time in it.");

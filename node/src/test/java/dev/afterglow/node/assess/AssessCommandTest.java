@@ -88,7 +88,7 @@ class AssessCommandTest {
         assertTrue(out.contains("SSIM per seed"), out);
 
         List<String> csv = Files.readAllLines(dir.resolve("dock-door-metrics.csv"));
-        assertEquals("seed,time_s,method,ssim,psnr_db,mae_log,fit_scale,fit_offset,chain", csv.get(0));
+        assertEquals("seed,time_s,method,ssim,moving_ssim,psnr_db,mae_log,fit_scale,fit_offset,chain", csv.get(0));
         assertEquals(1 + 2 * 15 * labels.size(), csv.size());
         assertTrue(csv.get(1).startsWith("5,0.100,flat,"), csv.get(1));
         assertTrue(csv.get(csv.size() - 1).startsWith("6,1.500,default,"), csv.get(csv.size() - 1));
