@@ -180,7 +180,7 @@ public final class PatchSupportFilter implements EventStage {
             double window = ratePerPixelUs > 0 ? fill / ratePerPixelUs : windowUs;
             adaptedWindowUs = (int) Math.max(Math.min(windowUs, MIN_ADAPTED_WINDOW_US), Math.min(windowUs, window));
         }
-        if (lastBatchEndUs == Long.MIN_VALUE || end > lastBatchEndUs) {
+        if (end > lastBatchEndUs) {
             lastBatchEndUs = end;
         }
         return adaptedWindowUs;

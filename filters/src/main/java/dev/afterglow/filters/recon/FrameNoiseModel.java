@@ -131,6 +131,22 @@ public final class FrameNoiseModel {
         return logOf[v] + (c - v) * (logOf[v + 1] - logOf[v]);
     }
 
+    /** Counts at {@code bits} per pixel per count at 8 bits. */
+    private static double countsPer8(int bits) {
+        return ((1 << bits) - 1) / 255.0;
+    }
+
+    /** Shot gain g in counts at {@code bits} per pixel. */
+    double shotGain(int bits) {
+        return shotGain8 * countsPer8(bits);
+    }
+
+    /** Read plus quantisation noise variance {@code r² + 1/12} in counts² at {@code bits} per pixel. */
+    double readVariance(int bits) {
+        double read = readNoise8 * countsPer8(bits);
+        return read * read + 1.0 / 12;
+    }
+
     /** The log table for {@code bits} (index: pixel value). */
     double[] logs(int bits) {
         prepare(bits);
@@ -151,9 +167,8 @@ public final class FrameNoiseModel {
             throw new IllegalArgumentException("bit depth " + bits + " outside 8..16");
         }
         int max = (1 << bits) - 1;
-        double scale = max / 255.0; // counts at this depth per count at 8 bits
-        double gain = shotGain8 * scale;
-        double read = readNoise8 * scale;
+        double gain = shotGain(bits);
+        double read = readNoise8 * countsPer8(bits);
         double[] logs = new double[max + 1];
         double[] vars = new double[max + 1];
         int saturatedAt = saturatedAt(bits);

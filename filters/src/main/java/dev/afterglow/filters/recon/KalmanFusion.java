@@ -300,31 +300,24 @@ public final class KalmanFusion implements FrameFusion {
         if (smoothing != null) {
             int[] cs = counts;
             for (int i = 0; i < n; i++) {
-                cs[i] = bytesPer == 1 ? in.get(at + i) & 0xFF : Math.min(max, in.getShort(at + 2 * i) & 0xFFFF);
+                cs[i] = count(in, at, i, bytesPer, max);
             }
-            double scale = max / 255.0;
-            double read = frameNoise.readNoise8() * scale;
-            smoothing.apply(cs, saturatedAt, frameNoise.shotGain8() * scale, read * read + 1.0 / 12);
+            smoothing.apply(cs, saturatedAt, frameNoise.shotGain(bitDepth), frameNoise.readVariance(bitDepth));
             smoothed = smoothing.filtered();
             factor = smoothing.varianceFactor();
         }
         for (int i = 0; i < n; i++) {
-            int v = smoothing != null ? counts[i]
-                    : bytesPer == 1 ? in.get(at + i) & 0xFF : Math.min(max, in.getShort(at + 2 * i) & 0xFFFF);
+            int v = smoothing != null ? counts[i] : count(in, at, i, bytesPer, max);
             long before = last[i];
             if (before != Long.MIN_VALUE && timeUs > before) {
                 p[i] += q * (timeUs - before);
             }
             double seen = againstExposure ? start[i] + share[i] : x[i];
-            double z;
-            double r;
+            double z = zs[v];
+            double r = p[i] >= UNKNOWN_VARIANCE ? rs[v] : byLog[frameNoise.logTableIndex(seen)];
             if (smoothed != null && factor[i] < 1) {
                 z = frameNoise.logOfCount(smoothed[i], bitDepth);
-                r = p[i] >= UNKNOWN_VARIANCE ? rs[v] : byLog[frameNoise.logTableIndex(seen)];
                 r *= factor[i];
-            } else {
-                z = zs[v];
-                r = p[i] >= UNKNOWN_VARIANCE ? rs[v] : byLog[frameNoise.logTableIndex(seen)];
             }
             if (v >= saturatedAt) {
                 // Censored: the pixel is at least as bright as saturation, no more is known. An
@@ -347,6 +340,11 @@ public final class KalmanFusion implements FrameFusion {
             }
         }
         framesApplied++;
+    }
+
+    /** Pixel {@code i}'s count, 8-bit or little-endian 16-bit clamped to the bit depth's full scale. */
+    private static int count(ByteBuffer in, int at, int i, int bytesPer, int max) {
+        return bytesPer == 1 ? in.get(at + i) & 0xFF : Math.min(max, in.getShort(at + 2 * i) & 0xFFFF);
     }
 
     @Override
