@@ -27,7 +27,7 @@ HIDDEN = 24
 DIVISOR = 4
 PAD_MULTIPLE = 8
 STATE_CHANNELS = HIDDEN + DIVISOR * DIVISOR
-NAME = "ember-2"
+NAME = "ember-3"
 
 
 class ConvGru(nn.Module):

@@ -56,6 +56,8 @@ def parse_args():
     a.add_argument("--threads", type=int, default=2)
     a.add_argument("--out", default=MODEL_OUT)
     a.add_argument("--fixtures", default=FIXTURES_OUT)
+    a.add_argument("--init", help="an Afterglow ONNX model of this architecture to start from (its weights), "
+                                    "instead of a fresh initialisation")
     a.add_argument("--export-only", action="store_true",
                    help="no training: export --work/NAME.pt (a finished run's checkpoint) and write its fixtures")
     return a.parse_args()
@@ -156,6 +158,19 @@ def held_out_loss(net, held):
             if k >= WARMUP_WINDOWS:
                 losses.append(frame_loss(image, tru[:, k]).mean().item())
     return float(np.mean(losses))
+
+
+def load_onnx_weights(net, path):
+    """Copies the weights of an exported model of the same architecture into net (the exporter keeps
+    the parameter names as initialiser names)."""
+    import onnx
+    from onnx import numpy_helper
+    weights = {i.name: torch.from_numpy(numpy_helper.to_array(i).copy()) for i in onnx.load(path).graph.initializer}
+    wanted = net.state_dict()
+    missing = [k for k in wanted if k not in weights or weights[k].shape != wanted[k].shape]
+    if missing:
+        raise SystemExit(f"{path}: not this architecture; missing or differently shaped: {', '.join(missing)}")
+    net.load_state_dict({k: weights[k] for k in wanted})
 
 
 def export(net, path):
@@ -259,6 +274,9 @@ def main():
     held, train = data[: args.held_out], data[args.held_out:]
     print(f"{len(train)} training and {len(held)} held-out sequences loaded in {time.time() - started:.0f} s", flush=True)
     net = ember.Ember()
+    if args.init:
+        load_onnx_weights(net, args.init)
+        print(f"starting from the weights of {args.init}", flush=True)
     optimiser = torch.optim.Adam(net.parameters(), lr=args.lr)
     steps_per_batch = -(-train[0][0].shape[0] // args.chunk)
     batches = -(-args.iterations // steps_per_batch)

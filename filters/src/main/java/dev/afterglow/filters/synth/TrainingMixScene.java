@@ -7,18 +7,24 @@ import java.util.SplittableRandom;
 /**
  * A randomised scene for training learned reconstruction: a panorama of fractal texture, flat
  * shapes and optionally a very bright or very dark area, seen by a camera that pans in a random
- * direction at a random pace with holds, and up to four textured objects crossing it at random
- * speeds (from a crawl to several image widths per second). Every choice comes from the seed, so
+ * direction at a random pace with holds ({@value #PAN_SHARE} of the seeds), spins steadily about a
+ * point of the view ({@value #SPIN_SHARE}) or rolls and zooms back and forth with holds (the rest),
+ * and up to four textured objects crossing it at random speeds (from a crawl to several image
+ * widths per second). Every choice comes from the seed, so
  * a seed reproduces the scene bit for bit. Never used for the benchmark scenes' seeds: it is a
  * different scene family altogether. Immutable.
  */
 public final class TrainingMixScene implements Scene {
     /** Name of the scene family. */
     public static final String NAME = "training-mix";
+    /** Share of scenes whose camera pans. */
+    static final double PAN_SHARE = 0.55;
+    /** Share of scenes whose camera spins steadily about a point; the rest swing (roll and zoom). */
+    static final double SPIN_SHARE = 0.15;
 
     private final int width;
     private final int height;
-    private final CameraPan camera;
+    private final CameraMotion camera;
     private final MovingSprite[] sprites;
     private final double maxSpeed;
 
@@ -41,15 +47,31 @@ public final class TrainingMixScene implements Scene {
         double gain = r.nextDouble(0.35, 0.75);
         int shapes = r.nextInt(12);
         int hdr = r.nextInt(4); // 0: a bright area, 1: a dark area, else none
-        double maxTravel = 2.5 * width;
-        double ax = r.nextDouble() < 0.25 ? 0 : r.nextDouble(0, maxTravel);
-        double ay = r.nextDouble() < 0.5 ? 0 : r.nextDouble(0, maxTravel / 2);
         long moveUs = (long) (logUniform(r, 0.25, 4) * 1e6);
         long holdUs = r.nextDouble() < 0.3 ? 0 : (long) (r.nextDouble(0.1, 1.5) * 1e6);
-        boolean backwards = r.nextBoolean();
+        double motion = r.nextDouble();
         SplittableRandom paint = r.split();
-        this.camera = new CameraPan(width, height, ax, ay, moveUs, holdUs, backwards,
-                (w, h) -> panorama(w, h, level, contrast, cell, octaves, gain, shapes, hdr, paint));
+        CameraMotion.Painter painter = (w, h) -> panorama(w, h, level, contrast, cell, octaves, gain, shapes, hdr, paint);
+        if (motion < PAN_SHARE) {
+            double maxTravel = 2.5 * width;
+            double ax = r.nextDouble() < 0.25 ? 0 : r.nextDouble(0, maxTravel);
+            double ay = r.nextDouble() < 0.5 ? 0 : r.nextDouble(0, maxTravel / 2);
+            this.camera = new CameraPan(width, height, ax, ay, moveUs, holdUs, r.nextBoolean(), painter);
+        } else {
+            double pivotX = width * r.nextDouble(0.25, 0.75);
+            double pivotY = height * r.nextDouble(0.25, 0.75);
+            if (motion < PAN_SHARE + SPIN_SHARE) {
+                double rate = logUniform(r, 0.2, 4) * (r.nextBoolean() ? 1 : -1);
+                this.camera = CameraSwing.spin(width, height, pivotX, pivotY, rate, painter);
+            } else {
+                boolean zoom = r.nextDouble() < 0.5;
+                boolean roll = !zoom || r.nextDouble() < 0.6;
+                double peakTurn = roll ? logUniform(r, 0.1, 3) * (r.nextBoolean() ? 1 : -1) : 0;
+                double angle = peakTurn * 2 * moveUs * 1e-6 / Math.PI;
+                double logZoom = zoom ? r.nextDouble(0.1, 0.7) * (r.nextBoolean() ? 1 : -1) : 0;
+                this.camera = CameraSwing.swing(width, height, pivotX, pivotY, angle, logZoom, moveUs, holdUs, painter);
+            }
+        }
         int count = r.nextInt(5);
         List<MovingSprite> list = new ArrayList<>();
         double fastest = camera.maxSpeedPxPerS();
@@ -147,6 +169,19 @@ public final class TrainingMixScene implements Scene {
 
     private static double logUniform(SplittableRandom r, double lo, double hi) {
         return Math.exp(r.nextDouble(Math.log(lo), Math.log(hi)));
+    }
+
+    /** How the camera moves: 0 pans, 1 spins steadily, 2 rolls and zooms back and forth. */
+    public int motionKind() {
+        if (camera instanceof CameraSwing s) {
+            return s.steady() ? 1 : 2;
+        }
+        return 0;
+    }
+
+    /** The camera's motion (for tests). */
+    CameraMotion camera() {
+        return camera;
     }
 
     @Override

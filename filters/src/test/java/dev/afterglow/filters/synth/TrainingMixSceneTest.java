@@ -63,4 +63,24 @@ class TrainingMixSceneTest {
         assertEquals(TrainingMixScene.NAME, new TrainingMixScene(32, 24, 1).name());
         assertThrows(IllegalArgumentException.class, () -> new TrainingMixScene(31, 24, 1));
     }
+
+    @Test
+    void theMixHoldsPansSpinsAndSwingsInTheirShares() {
+        int pans = 0;
+        int spins = 0;
+        int swings = 0;
+        int seeds = 400;
+        for (long seed = 1; seed <= seeds; seed++) {
+            TrainingMixScene scene = new TrainingMixScene(32, 24, seed);
+            int kind = scene.motionKind();
+            assertEquals(kind == 0, scene.camera() instanceof CameraPan);
+            pans += kind == 0 ? 1 : 0;
+            spins += kind == 1 ? 1 : 0;
+            swings += kind == 2 ? 1 : 0;
+        }
+        // binomial counts: within about 4 standard deviations of the stated shares
+        assertEquals(TrainingMixScene.PAN_SHARE * seeds, pans, 40);
+        assertEquals(TrainingMixScene.SPIN_SHARE * seeds, spins, 30);
+        assertEquals((1 - TrainingMixScene.PAN_SHARE - TrainingMixScene.SPIN_SHARE) * seeds, swings, 37);
+    }
 }

@@ -26,8 +26,9 @@ import picocli.CommandLine.Option;
  * training learned reconstruction. Each file holds the events ({@code x}, {@code y} as uint16,
  * {@code t} in microseconds as int64, {@code p} as int8 ±1), the true log irradiance
  * {@code frames} (float32, K x H x W) at {@code frame_times} (int64 us, every {@code --period}),
- * and {@code sensor} (float64: contrast, mismatch, refractory us, background Hz per pixel, hot
- * pixels, hot-pixel Hz, seed).
+ * {@code sensor} (float64: contrast, mismatch, refractory us, background Hz per pixel, hot
+ * pixels, hot-pixel Hz, seed) and, for the training mix, {@code motion} (int8: 0 the camera pans, 1
+ * it spins, 2 it rolls and zooms; see {@link TrainingMixScene#motionKind}).
  */
 @Command(name = "training-set", mixinStandardHelpOptions = true, sortOptions = false,
         description = "Writes randomised synthetic training sequences (events + true log irradiance) as .npz files.")
@@ -116,9 +117,12 @@ public final class TrainingSetCommand implements Callable<Integer> {
     private long writeSequence(long seed) throws IOException {
         SensorConfig config;
         Scene source;
+        int motion = -1;
         if (scene == null) {
             config = sensorFor(seed, width, height);
-            source = new TrainingMixScene(width, height, seed);
+            TrainingMixScene mix = new TrainingMixScene(width, height, seed);
+            motion = mix.motionKind();
+            source = mix;
         } else {
             SceneKind kind = SceneKind.byLabel(scene);
             config = kind.sensor(width, height).frames(0, 1).seed(seed).build();
@@ -156,6 +160,9 @@ public final class TrainingSetCommand implements Callable<Integer> {
             npz.float32("frames", truth, truth.length, frames, height, width);
             npz.float64("sensor", new double[] {config.contrast(), config.mismatch(), config.refractoryUs(),
                 config.backgroundRateHz(), config.hotPixels(), config.hotPixelRateHz(), seed}, 7, 7);
+            if (motion >= 0) {
+                npz.int8("motion", new byte[] {(byte) motion}, 1, 1);
+            }
         }
         Files.move(tmp, file, java.nio.file.StandardCopyOption.REPLACE_EXISTING);
         return events.size;
