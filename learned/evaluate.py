@@ -4,7 +4,10 @@ the way the quality report does (per-frame affine fit, truth min..max to [0, 1],
 Gaussian window, valid region only), beside a flat image. For tuning seeds during development;
 the figures the README reports come from `afterglow assess` on validation seeds.
 
-    /usr/bin/python3 learned/evaluate.py CHECKPOINT.pt FILE.npz ...
+    /usr/bin/python3 learned/evaluate.py MODEL FILE.npz ...
+
+MODEL is a training checkpoint (.pt) or an exported model of the same architecture (.onnx). Files
+from the training mix also print how their camera moves.
 """
 import sys
 import os
@@ -46,17 +49,25 @@ def evaluate(net, path, eval_every=4, warmup_windows=20):
                 truth = d["frames"][k].astype(np.float64)
                 ours.append(score(truth, image.astype(np.float64)))
                 flat.append(score(truth, np.zeros_like(truth)))
-    return float(np.mean(ours)), float(np.mean(flat))
+    return float(np.mean(ours)), float(np.mean(flat)), MOTIONS[int(d["motion"][0])] if "motion" in d else ""
+
+
+MOTIONS = ("pan", "spin", "swing")
 
 
 def main():
     torch.set_num_threads(2)
     net = ember.Ember()
-    net.load_state_dict(torch.load(sys.argv[1]))
+    if sys.argv[1].endswith(".onnx"):
+        from train import load_onnx_weights
+        load_onnx_weights(net, sys.argv[1])
+    else:
+        net.load_state_dict(torch.load(sys.argv[1]))
     net.eval()
     for path in sys.argv[2:]:
-        ours, flat = evaluate(net, path)
-        print(f"{os.path.basename(path):40s} ember {ours:.3f}  flat {flat:.3f}  gain {ours - flat:+.3f}", flush=True)
+        ours, flat, motion = evaluate(net, path)
+        print(f"{os.path.basename(path):40s} {motion:5s} ember {ours:.3f}  flat {flat:.3f}  gain {ours - flat:+.3f}",
+              flush=True)
 
 
 if __name__ == "__main__":

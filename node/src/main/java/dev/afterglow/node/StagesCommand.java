@@ -51,7 +51,8 @@ public final class StagesCommand implements Callable<Integer> {
         }
         System.out.println("Chain syntax: stage | stage | ... | reconstruction, e.g.");
         System.out.println("  " + ChainSpec.defaults());
-        System.out.println("Times take us, ms or s; frequencies rad/s or Hz (a = 2*pi*f).\n");
+        System.out.println("Times take us, ms or s; cut-off frequencies rad/s or Hz (a = 2*pi*f); rates (events or\n"
+                + "inferences per second) Hz.\n");
         for (StageKind k : StageKind.values()) {
             System.out.print(k.help());
         }

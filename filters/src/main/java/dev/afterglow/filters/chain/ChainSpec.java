@@ -173,7 +173,7 @@ public final class ChainSpec {
         }
         double number = Double.parseDouble(m.group(1));
         String suffix = m.group(2);
-        if (suffix.isEmpty() && (param.unit() == Unit.TIME || param.unit() == Unit.FREQUENCY)) {
+        if (suffix.isEmpty() && (param.unit() == Unit.TIME || param.unit() == Unit.FREQUENCY || param.unit() == Unit.RATE)) {
             throw new ChainSpecException(setting + "=" + valueText + ": needs a unit (" + param.unit().accepted + ")");
         }
         return param.unit().convert(setting, valueText, number, suffix);

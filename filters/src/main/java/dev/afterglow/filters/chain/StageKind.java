@@ -31,11 +31,10 @@ public enum StageKind {
     HOT_PIXEL("hot-pixel", false, List.of(
             new Param("learn", Unit.TIME, 2_000_000, 1_000, 600_000_000, "learning window"),
             new Param("factor", Unit.NUMBER, 20, 2, 1e6, "times the mean rate above which a pixel is hot"),
-            new Param("min-rate", Unit.FREQUENCY, 2 * Math.PI * 20, 0, 2 * Math.PI * 1e6,
-                    "a hot pixel also fires at least this fast (Hz accepted)"))) {
+            new Param("min-rate", Unit.RATE, 20, 0, 1e6, "a hot pixel also fires at least this fast"))) {
         @Override
         EventStage build(StageSpec s, int w, int h) {
-            return new HotPixelFilter(w, h, (long) s.get("learn"), s.get("factor"), s.get("min-rate") / (2 * Math.PI));
+            return new HotPixelFilter(w, h, (long) s.get("learn"), s.get("factor"), s.get("min-rate"));
         }
     },
     /** {@link BackgroundActivityFilter} with one supporting neighbour. */
@@ -129,12 +128,11 @@ public enum StageKind {
     LEARNED_RECON("learned-recon", true, List.of(
             Param.text("model", LearnedReconstruction.BUILTIN,
                     "ONNX model file following the model contract, or builtin (the model shipped with the node)"),
-            new Param("rate", Unit.FREQUENCY, 2 * Math.PI * 20, 2 * Math.PI * 0.1, 2 * Math.PI * 1000,
-                    "inferences per second (Hz accepted); frames in between repeat the last output"),
+            new Param("rate", Unit.RATE, 20, 0.1, 1000, "inferences per second; frames in between repeat the last output"),
             new Param("threads", Unit.INTEGER, 2, 1, 64, "ONNX Runtime intra-op threads (the calling thread included)"))) {
         @Override
         EventStage build(StageSpec s, int w, int h) {
-            long periodUs = Math.max(1, Math.round(2 * Math.PI * 1e6 / s.get("rate")));
+            long periodUs = Math.max(1, Math.round(1e6 / s.get("rate")));
             return LearnedReconstruction.open(s.text("model"), periodUs, (int) s.get("threads"), w, h);
         }
     },

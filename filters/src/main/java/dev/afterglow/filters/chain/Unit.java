@@ -6,6 +6,11 @@ enum Unit {
     TIME("us, ms or s", "us"),
     /** Angular frequency, stored in rad/s; written with rad/s or Hz (a = 2πf). */
     FREQUENCY("rad/s or Hz", "rad/s"),
+    /**
+     * A rate of things per second (events, inferences), stored in Hz; written with Hz, or with
+     * rad/s read as an angular frequency (f = a/2π), which is how such rates were once printed.
+     */
+    RATE("Hz (or rad/s)", "Hz"),
     /** A plain number without unit. */
     NUMBER("no unit", ""),
     /** A whole number without unit. */
@@ -39,6 +44,12 @@ enum Unit {
                 switch (suffix) {
                     case "rad/s": return number;
                     case "Hz": return number * 2 * Math.PI;
+                    default: throw bad(setting, text);
+                }
+            case RATE:
+                switch (suffix) {
+                    case "Hz": return number;
+                    case "rad/s": return number / (2 * Math.PI);
                     default: throw bad(setting, text);
                 }
             case INTEGER:

@@ -273,11 +273,12 @@ class ChainSpecFuzzTest {
     record Suffix(String text, double factor) {
     }
 
-    /** The units the grammar accepts for each kind of quantity (SI prefixes; a = 2*pi*f for Hz). */
+    /** The units the grammar accepts for each kind of quantity (SI prefixes; a = 2*pi*f for Hz, and f = a/(2*pi) for a rate written in rad/s). */
     private static List<Suffix> suffixes(Unit unit) {
         return switch (unit) {
             case TIME -> List.of(new Suffix("us", 1), new Suffix("ms", 1e3), new Suffix("s", 1e6));
             case FREQUENCY -> List.of(new Suffix("rad/s", 1), new Suffix("Hz", 2 * Math.PI));
+            case RATE -> List.of(new Suffix("Hz", 1), new Suffix("rad/s", 1 / (2 * Math.PI)));
             case NUMBER, INTEGER -> List.of(new Suffix("", 1));
             case TEXT -> throw new IllegalArgumentException("text has no units");
         };

@@ -63,8 +63,17 @@ class ChainSpecTest {
         assertEquals(7.5, last("high-pass(cutoff=7.5rad/s)").get("cutoff"));
         assertEquals(TWO_PI * 0.8, last("complementary(cutoff=0.8Hz, low-cutoff=0.1Hz)").get("cutoff"), 1e-12);
         assertEquals(TWO_PI * 0.1, last("complementary(cutoff=0.8Hz, low-cutoff=0.1Hz)").get("low-cutoff"), 1e-12);
-        assertEquals(TWO_PI * 5, only("hot-pixel(min-rate=5Hz)").get("min-rate"), 1e-12);
         assertEquals(1e-3, last("high-pass(cutoff=1e-3rad/s)").get("cutoff"));
+    }
+
+    @Test
+    void shouldKeepRatesInHertzAndReadRadiansPerSecondAsAnAngularFrequency() {
+        // f = a / (2 pi): a rate once printed in rad/s still parses to the same rate.
+        assertEquals(5, only("hot-pixel(min-rate=5Hz)").get("min-rate"));
+        assertEquals(5, only("hot-pixel(min-rate=" + TWO_PI * 5 + "rad/s)").get("min-rate"), 1e-12);
+        assertEquals("hot-pixel(learn=2000000us, factor=20, min-rate=20Hz)", only("hot-pixel").toString());
+        assertRejected("hot-pixel(min-rate=5)", "hot-pixel.min-rate", "needs a unit");
+        assertRejected("hot-pixel(min-rate=5ms)", "hot-pixel.min-rate", "unit must be Hz (or rad/s)");
     }
 
     @Test
@@ -74,7 +83,7 @@ class ChainSpecTest {
         StageSpec hot = only("hot-pixel()");
         assertEquals(2_000_000, hot.get("learn"));
         assertEquals(20, hot.get("factor"));
-        assertEquals(TWO_PI * 20, hot.get("min-rate"), 1e-12);
+        assertEquals(20, hot.get("min-rate"));
         assertEquals(2_000, only("background-activity").get("window"));
         assertEquals(2_000, only("correlation").get("window"));
         assertEquals(2, only("correlation").get("support"));
