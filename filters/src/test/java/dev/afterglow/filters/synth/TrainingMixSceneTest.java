@@ -78,9 +78,13 @@ class TrainingMixSceneTest {
             spins += kind == 1 ? 1 : 0;
             swings += kind == 2 ? 1 : 0;
         }
-        // binomial counts: within about 4 standard deviations of the stated shares
-        assertEquals(TrainingMixScene.PAN_SHARE * seeds, pans, 40);
-        assertEquals(TrainingMixScene.SPIN_SHARE * seeds, spins, 30);
-        assertEquals((1 - TrainingMixScene.PAN_SHARE - TrainingMixScene.SPIN_SHARE) * seeds, swings, 37);
+        assertShare(TrainingMixScene.PAN_SHARE, pans, seeds);
+        assertShare(TrainingMixScene.SPIN_SHARE, spins, seeds);
+        assertShare(1 - TrainingMixScene.PAN_SHARE - TrainingMixScene.SPIN_SHARE, swings, seeds);
+    }
+
+    /** A binomial count within 4.5 standard deviations, sqrt(n p (1 - p)), of n p (textbook). */
+    private static void assertShare(double p, int count, int n) {
+        assertEquals(n * p, count, 4.5 * Math.sqrt(n * p * (1 - p)), "share " + p);
     }
 }
