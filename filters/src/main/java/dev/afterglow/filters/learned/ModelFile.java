@@ -21,7 +21,7 @@ record ModelFile(String label, byte[] bytes, String sha256Hex) {
     /** Word that selects the shipped model. */
     static final String BUILTIN = "builtin";
     /** Class-path resource of the shipped model. */
-    static final String BUILTIN_RESOURCE = "/dev/afterglow/filters/learned/ember-2.onnx";
+    static final String BUILTIN_RESOURCE = "/dev/afterglow/filters/learned/ember-3.onnx";
     /** Largest model file read, in bytes. */
     static final long MAX_BYTES = 512L << 20;
 

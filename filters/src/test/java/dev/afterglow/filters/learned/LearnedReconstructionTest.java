@@ -33,7 +33,7 @@ class LearnedReconstructionTest {
 
     /**
      * Every fixture {@code NAME.fixture*.npz} in the test resources' {@code learned} folder, run
-     * through the model {@code NAME.onnx} beside it, or the shipped model for {@code ember-2}.
+     * through the model {@code NAME.onnx} beside it, or the shipped model for {@code ember-3}.
      * {@code tiny-contract.fixture.npz} comes from {@code learned_test_models.py}: numpy computed the
      * voxel grids (the contract's rule), the normalisation and the tiny network's operators by hand,
      * following the stage's window rules (windows of the period on the sensor's clock from the first
