@@ -1,9 +1,11 @@
 #!/usr/bin/python3
 """Trains the Ember reconstruction network on the project's own synthetic sensor and exports it.
 
-One command does everything (see DEVELOPERS.md, "Retraining the learned reconstruction"):
+One command does everything (see DEVELOPERS.md, "Retraining the learned reconstruction"); the
+shipped model, Ember-3, is Ember-2's weights trained further on the current training mix:
 
-    /usr/bin/python3 learned/train.py --jar node/target/afterglow.jar
+    /usr/bin/python3 learned/train.py --jar node/target/afterglow.jar --init learned/ember-2.onnx \
+        --iterations 1200 --lr 1e-3
 
 1. makes the training sequences with `afterglow training-set` (randomised scenes, motions, speeds,
    contrast thresholds with mismatch, refractory losses, 0.1 .. 5 Hz/pixel background activity,

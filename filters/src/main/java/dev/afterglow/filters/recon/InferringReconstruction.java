@@ -8,7 +8,7 @@ package dev.afterglow.filters.recon;
  */
 public interface InferringReconstruction extends Reconstruction {
 
-    /** The model's identity: its own name and the first 12 hex digits of its file's SHA-256, e.g. {@code ember-2@1d6cba2c8228}. */
+    /** The model's identity: its own name and the first 12 hex digits of its file's SHA-256, e.g. {@code ember-3@ac0976481e1b}. */
     String modelIdentity();
 
     /**
