@@ -172,17 +172,18 @@ public final class PatchSupportFilter implements EventStage {
             return adaptedWindowUs;
         }
         long end = batch.timeBaseUs + batch.t[n - 1];
-        if (lastBatchEndUs != Long.MIN_VALUE && end > lastBatchEndUs) {
+        if (end <= lastBatchEndUs) {
+            return adaptedWindowUs;
+        }
+        if (lastBatchEndUs != Long.MIN_VALUE) {
             long span = end - lastBatchEndUs;
             double instant = n / ((double) pixels * span);
             double a = Math.min(1, (double) span / RATE_TIME_CONSTANT_US);
             ratePerPixelUs += a * (instant - ratePerPixelUs);
             double window = ratePerPixelUs > 0 ? fill / ratePerPixelUs : windowUs;
-            adaptedWindowUs = (int) Math.max(Math.min(windowUs, MIN_ADAPTED_WINDOW_US), Math.min(windowUs, window));
+            adaptedWindowUs = (int) Math.min(windowUs, Math.max(MIN_ADAPTED_WINDOW_US, window));
         }
-        if (end > lastBatchEndUs) {
-            lastBatchEndUs = end;
-        }
+        lastBatchEndUs = end;
         return adaptedWindowUs;
     }
 

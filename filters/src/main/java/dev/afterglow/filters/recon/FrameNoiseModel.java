@@ -168,14 +168,14 @@ public final class FrameNoiseModel {
         }
         int max = (1 << bits) - 1;
         double gain = shotGain(bits);
-        double read = readNoise8 * countsPer8(bits);
+        double readVar = readVariance(bits);
         double[] logs = new double[max + 1];
         double[] vars = new double[max + 1];
         int saturatedAt = saturatedAt(bits);
         for (int v = 0; v <= max; v++) {
             double level = v + 0.5;
             logs[v] = Math.log(level / (max + 1));
-            vars[v] = v >= saturatedAt ? SATURATED_VARIANCE : (gain * v + read * read + 1.0 / 12) / (level * level);
+            vars[v] = v >= saturatedAt ? SATURATED_VARIANCE : (gain * v + readVar) / (level * level);
         }
         logOf = logs;
         varianceOf = vars;
@@ -192,7 +192,7 @@ public final class FrameNoiseModel {
         for (int k = 0; k < LOG_TABLE_SIZE; k++) {
             double level = Math.exp(lo + (k + 0.5) * step) * (max + 1); // μ + 1/2
             double mu = Math.max(0, level - 0.5);
-            byLog[k] = (gain * mu + read * read + 1.0 / 12) / (level * level);
+            byLog[k] = (gain * mu + readVar) / (level * level);
         }
         varianceAtLog = byLog;
         logTableStart = lo;
